@@ -38,6 +38,7 @@ class TargetUnreachable(MountsmithError, ValueError):
     def __init__(self, field: str, reason: str):
         self.field = field
         self.reason = reason
+        self.value = None
         super().__init__(f"{field}: {reason}")
 
 

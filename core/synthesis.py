@@ -141,7 +141,7 @@ def design_frequency_ratio(design: DesignInputs) -> float:
     if design.tuning == "frequency_ratio":
         return float(design.frequency_ratio)
     target = 1.0 - design.isolation_percent / 100.0
-    return required_ratio(target, design.damping)
+    return required_ratio(target, design.damping, field="tuning.isolation_percent")
 
 
 def _worst_over_range(design: DesignInputs, omega_n: float, r_low: float, r_high: float):

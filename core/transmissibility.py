@@ -222,7 +222,7 @@ def transmissibility_peak(damping: Damping) -> Peak:
 
 
 def required_ratio(target_transmissibility: float, damping: Damping,
-                   max_ratio: float = MAX_DESIGN_RATIO) -> float:
+                   max_ratio: float = MAX_DESIGN_RATIO, field: str = "target") -> float:
     """Frequency ratio above resonance at which |T| equals a target below 1.
 
     Closed form in x = r**2 for both damping models:
@@ -238,6 +238,8 @@ def required_ratio(target_transmissibility: float, damping: Damping,
     damping : Damping
     max_ratio : float
         Largest ratio that counts as reachable.
+    field : str
+        Field name the error message names.
 
     Raises
     ------
@@ -247,7 +249,7 @@ def required_ratio(target_transmissibility: float, damping: Damping,
     tau = float(target_transmissibility)
     if not np.isfinite(tau) or not 0.0 < tau < 1.0:
         raise TargetUnreachable(
-            "target", f"transmissibility target must be between 0 and 1 exclusive (isolation "
+            field, f"transmissibility target must be between 0 and 1 exclusive (isolation "
             f"between 0 and 100 %), got {tau!r}")
     value = damping.value
     tau2 = tau * tau
@@ -261,7 +263,7 @@ def required_ratio(target_transmissibility: float, damping: Damping,
     ratio = float(np.sqrt(x))
     if ratio > max_ratio:
         raise TargetUnreachable(
-            "target", f"isolation {isolation_percent(tau):.4g} % needs a frequency ratio of "
+            field, f"isolation {isolation_percent(tau):.4g} % needs a frequency ratio of "
             f"{ratio:.4g} with {damping.label}, beyond the supported {max_ratio:g}; "
             "lower the damping or the target")
     return ratio

@@ -24,9 +24,9 @@ import numpy as np
 import scipy.linalg
 from scipy.spatial.transform import Rotation
 
+from core.constants import STANDARD_GRAVITY
 from core.errors import InputError
 
-STANDARD_GRAVITY_M_PER_S2 = 9.80665
 #: Names of the six coordinates, in the order of every 6-vector and 6x6 matrix.
 COORDINATES = ("x", "y", "z", "θx", "θy", "θz")
 #: An ω² below this share of the largest ω² is taken as "no stiffness" (a free motion).
@@ -487,7 +487,7 @@ class StaticLoads:
         return tuple(int(index) for index in np.flatnonzero(self.vertical_load_n < 0))
 
 
-def static_loads(body: RigidBody, mounts: Sequence[Mount], g=STANDARD_GRAVITY_M_PER_S2) -> StaticLoads:
+def static_loads(body: RigidBody, mounts: Sequence[Mount], g=STANDARD_GRAVITY) -> StaticLoads:
     """Share the body's weight among its mounts, solved elastically.
 
     Gravity acts at the CG, so with K about the CG the load vector is

@@ -148,7 +148,7 @@ class DesignInputs:
 
     def _check_loads(self, count: int) -> None:
         if len(self.loads_n) != count:
-            raise InputError("mounts.loads_n", f"needs one load per mount ({count} values)", list(self.loads_n))
+            raise InputError("mounts.loads_n", f"must hold one load per mount ({count} values)", list(self.loads_n))
         for value in self.loads_n:
             if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) \
                     or value <= 0:

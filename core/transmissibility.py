@@ -267,3 +267,16 @@ def required_ratio(target_transmissibility: float, damping: Damping,
             f"{ratio:.4g} with {damping.label}, beyond the supported {max_ratio:g}; "
             "lower the damping or the target")
     return ratio
+
+
+def loss_factor_with_same_peak(damping_ratio: float) -> float:
+    """Loss factor eta whose hysteretic peak equals the viscous peak for ``damping_ratio``.
+
+    The hysteretic peak height is sqrt(1 + eta**2) / eta, so eta = 1 / sqrt(P**2 - 1)
+    with P the exact viscous peak height. Used to compare the two models fairly.
+    """
+    if not np.isfinite(damping_ratio) or not 0.0 < damping_ratio <= MAX_DAMPING:
+        raise InputError("damping.damping_ratio", f"must be a number above 0 and up to {MAX_DAMPING:g}",
+                         damping_ratio)
+    height = transmissibility_peak(Damping("viscous", damping_ratio)).magnitude
+    return float(1.0 / np.sqrt(height * height - 1.0))

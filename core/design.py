@@ -16,6 +16,9 @@ from core.errors import InputError
 from core.excitation import Excitation
 from core.transmissibility import MAX_DAMPING, MAX_DESIGN_RATIO, Damping
 
+#: Most duty speeds a design may list.
+MAX_DUTY_SPEEDS = 24
+
 LoadLayout = Literal["equal", "per_mount", "cg_offset"]
 Tuning = Literal["isolation", "frequency_ratio"]
 
@@ -23,6 +26,7 @@ Tuning = Literal["isolation", "frequency_ratio"]
 LIMITS = {
     "machine.mass_kg": (1e-3, 1e7),
     "machine.speed_rpm": (1.0, 1e6),
+    "machine.duty_speeds_rpm": (1.0, 1e6),
     "mounts.count": (1, 64),
     "damping.dynamic_stiffness_ratio": (1.0, 10.0),
     "tuning.frequency_ratio": (0.05, MAX_DESIGN_RATIO),
@@ -78,6 +82,9 @@ class DesignInputs:
         Operating speed, or the lowest of a range (r/min).
     speed_max_rpm : float or None
         Highest operating speed of a range (r/min); None for one speed.
+    duty_speeds_rpm : tuple of float
+        Further speeds the machine runs at for long (r/min), e.g. the steps of a
+        variable-speed drive; each is checked like the range ends.
     mount_count : int
     load_layout : {"equal", "per_mount", "cg_offset"}
         How the weight shares out: equally, by given loads, or by statics of a
@@ -105,6 +112,7 @@ class DesignInputs:
     mass_kg: float = 500.0
     speed_rpm: float = 1480.0
     speed_max_rpm: float | None = None
+    duty_speeds_rpm: tuple[float, ...] = ()
     mount_count: int = 4
     load_layout: LoadLayout = "equal"
     loads_n: tuple[float, ...] = ()
@@ -128,6 +136,11 @@ class DesignInputs:
             if top < self.speed_rpm:
                 raise InputError("machine.speed_max_rpm",
                                  f"must be at least the lowest speed {self.speed_rpm:g} r/min", top)
+        if len(self.duty_speeds_rpm) > MAX_DUTY_SPEEDS:
+            raise InputError("machine.duty_speeds_rpm", f"must hold at most {MAX_DUTY_SPEEDS} speeds",
+                             len(self.duty_speeds_rpm))
+        for speed in self.duty_speeds_rpm:
+            check_range("machine.duty_speeds_rpm", speed, "r/min")
         count = check_range("mounts.count", self.mount_count, integer=True)
         if self.load_layout not in ("equal", "per_mount", "cg_offset"):
             raise InputError("mounts.load_layout", "must be equal, per_mount or cg_offset", self.load_layout)
@@ -194,7 +207,7 @@ class DesignInputs:
         """The ``"design"`` object of a project file (JSON types, SI units)."""
         return {
             "machine": {"mass_kg": self.mass_kg, "speed_rpm": self.speed_rpm,
-                        "speed_max_rpm": self.speed_max_rpm},
+                        "speed_max_rpm": self.speed_max_rpm, "duty_speeds_rpm": list(self.duty_speeds_rpm)},
             "mounts": {"count": self.mount_count, "load_layout": self.load_layout,
                        "loads_n": list(self.loads_n), "cg_offset_m": list(self.cg_offset_m),
                        "span_m": list(self.span_m)},
@@ -228,6 +241,7 @@ class DesignInputs:
             mass_kg=machine.get("mass_kg"),
             speed_rpm=machine.get("speed_rpm"),
             speed_max_rpm=speed_max,
+            duty_speeds_rpm=tuple(machine.get_list("duty_speeds_rpm", default=[])),
             mount_count=mounts.get("count", kind=int),
             load_layout=mounts.get("load_layout", kind=str, default="equal"),
             loads_n=tuple(mounts.get_list("loads_n", default=[])),

@@ -9,7 +9,7 @@ keys of ``mountsmith evaluate --json`` with the unit in each name.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import asdict, dataclass, replace
 
 import numpy as np
 
@@ -23,6 +23,28 @@ from core.transmissibility import (
 PRACTICAL_RATIO = 3.0
 #: Band around resonance (as a share of the natural frequency) that running speed should avoid.
 RESONANCE_BAND = 0.2
+
+
+@dataclass(frozen=True)
+class DutyPoint:
+    """Performance at one duty speed.
+
+    Attributes
+    ----------
+    speed_rpm : float
+    frequency_ratio : float
+    transmissibility : float
+        |T| at this speed.
+    isolation_percent : float
+    phase_deg : float
+        Lag negative.
+    """
+
+    speed_rpm: float
+    frequency_ratio: float
+    transmissibility: float
+    isolation_percent: float
+    phase_deg: float
 
 
 @dataclass(frozen=True)
@@ -54,6 +76,7 @@ class DesignResult:
     peak_frequency_ratio: float
     worst_transmissibility: float
     worst_speed_rpm: float
+    duty_points: tuple[DutyPoint, ...]
     excitation_force_n: float | None
     transmitted_force_n: float | None
     transmitted_force_per_mount_n: tuple[float, ...] | None
@@ -87,6 +110,7 @@ class DesignResult:
             "peak_frequency_ratio": self.peak_frequency_ratio,
             "worst_transmissibility": self.worst_transmissibility,
             "worst_speed_rpm": self.worst_speed_rpm,
+            "duty_points": [asdict(point) for point in self.duty_points],
             "warnings": list(self.warnings),
         }
         if self.excitation_force_n is not None:
@@ -145,14 +169,26 @@ def design_frequency_ratio(design: DesignInputs) -> float:
 
 
 def _worst_over_range(design: DesignInputs, omega_n: float, r_low: float, r_high: float):
-    """Largest |T| over the speed range and the speed (r/min) where it occurs."""
+    """Largest |T| over the speed range and duty speeds, and the speed (r/min) where it occurs."""
     peak = transmissibility_peak(design.damping)
-    candidates = [r_low, r_high]
+    candidates = [r_low, r_high] + [float(rpm_to_rad_s(s)) / omega_n for s in design.duty_speeds_rpm]
     if r_low < peak.ratio < r_high:
         candidates.append(peak.ratio)
     values = np.abs(force_transmissibility(np.array(candidates), design.damping))
     worst = int(np.argmax(values))
     return float(values[worst]), float(rad_s_to_rpm(candidates[worst] * omega_n))
+
+
+def _duty_points(design: DesignInputs, omega_n: float) -> tuple[DutyPoint, ...]:
+    """Performance at each listed duty speed, in the order given."""
+    if not design.duty_speeds_rpm:
+        return ()
+    speeds = np.asarray(design.duty_speeds_rpm, dtype=float)
+    ratios = rpm_to_rad_s(speeds) / omega_n
+    response = force_transmissibility(ratios, design.damping)
+    magnitudes = np.abs(response)
+    return tuple(DutyPoint(float(s), float(r), float(t), float(isolation_percent(t)), float(p))
+                 for s, r, t, p in zip(speeds, ratios, magnitudes, np.degrees(np.angle(response))))
 
 
 def synthesize(design: DesignInputs) -> DesignResult:
@@ -186,6 +222,7 @@ def synthesize(design: DesignInputs) -> DesignResult:
     peak = transmissibility_peak(design.damping)
     worst, worst_speed = _worst_over_range(design, omega_n, ratio, ratio_high)
     static_deflection = design.weight_n / static_stiffness
+    duty_points = _duty_points(design, omega_n)
 
     force = transmitted = per_mount = displacement = velocity = None
     if design.excitation.kind != "none":
@@ -217,6 +254,7 @@ def synthesize(design: DesignInputs) -> DesignResult:
         peak_frequency_ratio=peak.ratio,
         worst_transmissibility=worst,
         worst_speed_rpm=worst_speed,
+        duty_points=duty_points,
         excitation_force_n=force,
         transmitted_force_n=transmitted,
         transmitted_force_per_mount_n=per_mount,
@@ -242,6 +280,15 @@ def _with_warnings(result: DesignResult, design: DesignInputs, loads: np.ndarray
         warnings.append(
             f"Operating speed range comes within ±{RESONANCE_BAND:.0%} of the natural frequency "
             f"({result.natural_frequency_rpm:.5g} r/min): it runs at or near resonance.")
+    for point in result.duty_points:
+        if point.frequency_ratio <= CROSSOVER_RATIO:
+            warnings.append(
+                f"Duty speed {point.speed_rpm:.6g} r/min gives frequency ratio {point.frequency_ratio:.3g}, "
+                "not above √2: the mounts amplify there.")
+        if abs(point.frequency_ratio - 1.0) <= RESONANCE_BAND:
+            warnings.append(
+                f"Duty speed {point.speed_rpm:.6g} r/min is within ±{RESONANCE_BAND:.0%} of the natural "
+                "frequency: it runs at resonance.")
     deflection_mm = result.static_deflection_m * 1e3
     if deflection_mm > design.limits.max_static_deflection_mm:
         warnings.append(
@@ -263,5 +310,5 @@ def _with_warnings(result: DesignResult, design: DesignInputs, loads: np.ndarray
     return replace(result, warnings=tuple(warnings))
 
 
-__all__ = ["DesignResult", "synthesize", "mount_loads", "rectangular_mount_positions", "offset_cg_loads",
+__all__ = ["DesignResult", "DutyPoint", "synthesize", "mount_loads", "rectangular_mount_positions", "offset_cg_loads",
            "design_frequency_ratio"]

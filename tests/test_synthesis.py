@@ -170,3 +170,21 @@ def test_bad_inputs_name_the_field_and_range(changes, field):
 def test_unreachable_target_is_reported():
     with pytest.raises(TargetUnreachable, match="lower the damping"):
         synthesize(DesignInputs(damping=Damping("viscous", 1.0), isolation_percent=99.9))
+
+
+def test_duty_speeds_are_each_evaluated_and_checked():
+    # Closed form |T| (Vigran eq. 2.33) at each duty speed; fn = 600 r/min from r = 3 at 1800 r/min.
+    design = DesignInputs(mass_kg=300, speed_rpm=1800, duty_speeds_rpm=(700.0, 1200.0, 2400.0),
+                          tuning="frequency_ratio", frequency_ratio=3.0, damping=Damping("viscous", 0.1))
+    result = synthesize(design)
+    ratios = np.array([700, 1200, 2400]) / 600
+    expected = np.sqrt((1 + (0.2 * ratios) ** 2) / ((1 - ratios**2) ** 2 + (0.2 * ratios) ** 2))
+    assert [p.frequency_ratio for p in result.duty_points] == pytest.approx(ratios)
+    assert [p.transmissibility for p in result.duty_points] == pytest.approx(expected, rel=1e-12)
+    assert result.worst_speed_rpm == pytest.approx(700)
+    assert result.worst_transmissibility == pytest.approx(expected[0])
+    text = " ".join(result.warnings)
+    assert "Duty speed 700 r/min" in text and "resonance" in text
+    assert result.to_json_dict()["duty_points"][1]["speed_rpm"] == 1200.0
+    with pytest.raises(InputError, match="duty_speeds_rpm"):
+        synthesize(DesignInputs(duty_speeds_rpm=(float("nan"),)))

@@ -362,8 +362,17 @@ def mass_matrix(body: RigidBody) -> np.ndarray:
 
 
 def _energy_share(shapes: np.ndarray, mass: np.ndarray) -> np.ndarray:
-    """Kinetic-energy share (modes, coordinates) of M-normalized shape columns."""
-    return (shapes * (mass @ shapes)).T
+    """Kinetic-energy share (modes, coordinates) of shape columns.
+
+    Squared components of the mass-weighted shape ``M^½ φ`` (symmetric square
+    root), divided by ``φᵀ M φ``. With principal inertia axes this is the
+    usual ``φ_c (Mφ)_c``; with products of inertia it splits the cross terms
+    so that every share stays in [0, 1].
+    """
+    values, vectors = np.linalg.eigh(mass)
+    root = (vectors * np.sqrt(values)) @ vectors.T
+    weighted = root @ shapes
+    return (weighted**2 / np.sum(weighted**2, axis=0)).T
 
 
 def _solve_modes(stiffness: np.ndarray, mass: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -402,10 +411,10 @@ class RigidBodyModes:
         Mode shapes as columns over ``COORDINATES`` (m and rad per √kg),
         normalized so that ``shapesᵀ M shapes = I``.
     energy_share : (6, 6) float
-        Kinetic-energy share, row = mode, column = coordinate; each row sums
-        to 1 (``φ_c (Mφ)_c``). With products of inertia a rotational share
-        may fall slightly below 0 (the coupling term); with principal axes
-        every share is in [0, 1].
+        Kinetic-energy share, row = mode, column = coordinate, each in [0, 1],
+        each row summing to 1: ``(M^½ φ)_c²``. With principal inertia axes
+        this equals the usual ``φ_c (Mφ)_c``; with products of inertia the
+        cross terms are split by the symmetric square root ``M^½``.
     dominant : tuple of str
         Per mode, the coordinate with the largest energy share.
     inertia_is_estimate : bool
@@ -443,6 +452,7 @@ def modes(body: RigidBody, mounts: Sequence[Mount]) -> RigidBodyModes:
     InputError
         ``field="mounts"`` when the layout leaves a motion without stiffness.
     """
+    mounts = _checked_mounts(mounts)
     mass = mass_matrix(body)
     stiffness = stiffness_matrix(mounts, body.cg_m)
     eigenvalues, shapes = _solve_modes(stiffness, mass)
@@ -508,10 +518,10 @@ def static_loads(body: RigidBody, mounts: Sequence[Mount], g=STANDARD_GRAVITY) -
     StaticLoads
     """
     gravity = _positive_number(g, "g", "must be a number > 0 m/s²")
+    mounts = _checked_mounts(mounts)
     mass = mass_matrix(body)
     stiffness = stiffness_matrix(mounts, body.cg_m)
     _solve_modes(stiffness, mass)
-    mounts = tuple(mounts)
     weight = body.mass_kg * gravity
     load = np.array([0.0, 0.0, -weight, 0.0, 0.0, 0.0])
     displacement = scipy.linalg.solve(stiffness, load, assume_a="sym")
@@ -643,10 +653,10 @@ def mount_forces(
     InputError
         ``frequency_hz`` at an undamped natural frequency (no finite answer).
     """
+    mounts = _checked_mounts(mounts)
     mass = mass_matrix(body)
     stiffness = stiffness_matrix(mounts, body.cg_m)
     _solve_modes(stiffness, mass)
-    mounts = tuple(mounts)
     try:
         frequency = np.asarray(frequency_hz, dtype=float)
     except (TypeError, ValueError):

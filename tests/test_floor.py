@@ -21,7 +21,7 @@ UM = 1e-6  # m/s per µm/s
 
 
 def viscous_tf(zeta: float, fn_hz: float):
-    """T(s) = (2 zeta wn s + wn^2) / (s^2 + 2 zeta wn s + wn^2) (REFERENCES §8)."""
+    """T(s) = (2 zeta wn s + wn^2) / (s^2 + 2 zeta wn s + wn^2) (REFERENCES §8, Laplace form of Vigran eq. 2.32)."""
     wn = 2 * np.pi * fn_hz
     return [2 * zeta * wn, wn * wn], [1.0, 2 * zeta * wn, wn * wn]
 
@@ -79,13 +79,15 @@ def test_criterion_values(name, limit_um_s):
 
 
 def test_vc_uses_metric_definition_not_inch():
-    # REFERENCES §4: the inch definition (2000 µin/s = 50.8 µm/s for VC-A) differs by 1.6 %.
+    # REFERENCES §4 (B. Davis 2008 note): the inch definition (2000 µin/s = 50.8 µm/s for VC-A)
+    # differs by 1.6 %.
     assert criterion_by_name("vc-a").velocity_limit_m_s == pytest.approx(50e-6, rel=1e-12)
     assert criterion_by_name("VC-A").velocity_limit_m_s != pytest.approx(2000 * 25.4e-9, rel=1e-3)
 
 
 def test_vc_range_is_1_to_80_hz_and_iso_constant_part_8_to_80_hz():
-    # REFERENCES §4: VC constant 1-80 Hz; ISO 2631-2 constant-velocity part 8-80 Hz (from memory).
+    # REFERENCES §4 (B. Davis 2008; IEST-RP-CC012): VC constant 1-80 Hz; ISO 2631-2 constant-
+    # velocity part 8-80 Hz (from memory).
     bands = third_octave_bands(0.8, 100.0).nominal_hz
     vc = criterion_by_name("VC-D").covers(bands)
     iso = criterion_by_name("ISO 2631-2 office").covers(bands)
@@ -114,25 +116,29 @@ def test_band_centre_transmissibility_matches_scipy_freqresp(zeta, fn_hz):
 
 
 def test_reference_point_zeta_0_1_at_twice_fn():
-    # REFERENCES §8: zeta = 0.1, w = 2 wn -> |T| = 0.35586. Band 10 Hz (exact), fn = 5 Hz.
+    # REFERENCES §8 (python-control/scipy check of Vigran eq. 2.33): zeta = 0.1, w = 2 wn -> |T|
+    # = 0.35586. Band 10 Hz (exact), fn = 5 Hz.
     floor = floor_spectrum([10.0], [1 * UM])
     prediction = predict_equipment_spectrum(floor, 5.0, damping_ratio=0.1)
     assert prediction.transmissibility[0] == pytest.approx(0.35586, rel=2e-5)
 
 
 def test_hysteretic_prediction_matches_published_table():
-    # REFERENCES §1 (Vinokur 2023; Snowdon NBS 128): eta = 0.5, r = 2 -> 0.3676, r = 5 -> 0.04657.
+    # REFERENCES §1 (Vinokur 2023; Snowdon NBS 128): eta = 0.5, r = 2 -> 0.3676.
     floor = floor_spectrum([10.0, 25.0], [1 * UM, 1 * UM])
     prediction = predict_equipment_spectrum(floor, 5.0, loss_factor=0.5)
     assert prediction.transmissibility[0] == pytest.approx(0.3676, rel=2e-4)
     centre_ratio = 10 ** 1.4 / 5.0  # exact 25 Hz centre is 25.119 Hz, r = 5.024
-    expected = math.sqrt((1 + 0.25) / ((1 - centre_ratio ** 2) ** 2 + 0.25))  # REFERENCES §1 formula
+    # Vinokur 2023 / Snowdon formula (REFERENCES §1): |T| = sqrt((1 + eta^2) / ((1 - r^2)^2 + eta^2)).
+    expected = math.sqrt((1 + 0.25) / ((1 - centre_ratio ** 2) ** 2 + 0.25))
     assert prediction.transmissibility[1] == pytest.approx(expected, rel=1e-10)
 
 
 def test_stroke_matches_relative_displacement_transfer_function():
-    # Relative deflection z = x - y of m z'' + c z' + k z = -m y'': Z/Y(s) = -s^2/(s^2 + 2 zeta wn s + wn^2),
-    # |Z/Y| = r^2/sqrt((1-r^2)^2 + (2 zeta r)^2) (REFERENCES §1); scipy.signal.freqresp evaluates it.
+    # Relative deflection z = x - y of m z'' + c z' + k z = -m y'': Z/Y(s) = -s^2/(s^2 + 2 zeta
+    # wn s + wn^2),
+    # |Z/Y| = r^2/sqrt((1-r^2)^2 + (2 zeta r)^2) (Rao / Inman, from memory; REFERENCES §1);
+    # scipy.signal.freqresp evaluates it.
     zeta, fn = 0.08, 6.0
     wn = 2 * np.pi * fn
     floor = floor_spectrum([2.0, 5.0, 6.3, 20.0, 80.0], [4 * UM, 2 * UM, 3 * UM, 1 * UM, 0.5 * UM])
@@ -184,7 +190,7 @@ def test_damping_must_be_given_once_and_positive():
 
 def test_margin_sign_positive_below_limit():
     # Hand computation: an isolator far stiffer than every band (fn = 10 kHz, |T| -> 1 within
-    # 1e-4 by REFERENCES §1 at r <= 0.008) passes the floor on; margin = 20 log10(limit / level).
+    # 1e-4 by Vigran eq. 2.33 at r <= 0.008) passes the floor on; margin = 20 log10(limit / level).
     quiet = check_criterion(flat_floor_spectrum(5 * UM), "VC-C", 1e4, damping_ratio=0.05)
     assert np.allclose(quiet.margin_db, 20 * math.log10(12.5 / 5), atol=1e-3)  # +7.96 dB
     assert quiet.passed
@@ -194,7 +200,8 @@ def test_margin_sign_positive_below_limit():
 
 
 def test_worst_band_is_the_resonant_band():
-    # REFERENCES §1: at r = 1, |T| = sqrt(1 + 4 zeta^2)/(2 zeta) = 10.05 for zeta = 0.05.
+    # Vigran eq. 2.33 (REFERENCES §1): at r = 1, |T| = sqrt(1 + 4 zeta^2)/(2 zeta) = 10.05 for
+    # zeta = 0.05.
     fn = 10 ** 0.6  # exact centre of the 4 Hz band
     result = check_criterion(flat_floor_spectrum(1 * UM), "VC-C", fn, damping_ratio=0.05)
     assert result.worst_band_nominal_hz == 4.0
@@ -221,7 +228,8 @@ def test_value_equal_to_limit_passes():
 
 
 def test_bands_outside_criterion_range_are_listed_not_assessed():
-    # ISO 2631-2 constant-velocity part starts at 8 Hz (from memory); VC starts at 1 Hz (REFERENCES §4).
+    # ISO 2631-2 constant-velocity part starts at 8 Hz (from memory); VC starts at 1 Hz (B.
+    # Davis 2008; REFERENCES §4).
     floor = flat_floor_spectrum(1000 * UM, 1.0, 200.0)
     result = check_criterion(floor, "ISO 2631-2 office", 1e4, damping_ratio=0.05)
     assert result.nominal_hz.tolist() == IEC_NOMINAL_1_TO_80[9:]
@@ -236,7 +244,8 @@ def test_bands_outside_criterion_range_are_listed_not_assessed():
 
 
 def test_inverse_single_band_undamped_limit_matches_required_ratio():
-    # REFERENCES §2: undamped, |T| = 0.1 (90 % isolation) needs r = sqrt(1 + 1/0.1) = 3.3166.
+    # Undamped relation r = sqrt(1 + 1/(1 - IE)) from Vigran eq. 2.33 with zeta = 0 (REFERENCES
+    # §2): |T| = 0.1 (90 % isolation) needs r = sqrt(1 + 1/0.1) = 3.3166.
     # One 20 Hz band at 125 µm/s against VC-C 12.5 µm/s needs |T| <= 0.1, so fn = fc / 3.3166.
     centre = 10 ** 1.3
     floor = floor_spectrum([20.0], [125 * UM])
@@ -265,18 +274,20 @@ def test_inverse_meets_at_fn_and_fails_just_above(band_rule):
     assert check_criterion(floor, "VC-C", fn, damping_ratio=0.05, band_rule=band_rule).passed
     above = check_criterion(floor, "VC-C", fn * (1 + 1e-6), damping_ratio=0.05, band_rule=band_rule)
     assert not above.passed
-    # Static deflection: fn[Hz] = 15.761 / sqrt(delta[mm]) (REFERENCES §2, common practice).
+    # Static deflection: fn[Hz] = 15.761 / sqrt(delta[mm]) (REFERENCES §2, common practice;
+    # coefficient from g = 9.80665).
     assert result.static_deflection_mm == pytest.approx((15.761 / fn) ** 2, rel=1e-4)
 
 
 def test_static_deflection_reference_points():
-    # REFERENCES §2: fn = 5 Hz -> 9.936 mm; 15.76 Hz -> 1 mm.
+    # Common practice relation (REFERENCES §2): fn = 5 Hz -> 9.936 mm; 15.76 Hz -> 1 mm.
     assert static_deflection_m(5.0) * 1e3 == pytest.approx(9.936, rel=1e-4)
     assert static_deflection_m(15.761) * 1e3 == pytest.approx(1.0, rel=1e-4)
 
 
 def test_inverse_already_met_over_whole_range():
-    # REFERENCES §1: zeta = 0.3 peaks at |T| = 1.995, so 1 µm/s never exceeds VC-A 50 µm/s.
+    # Peak table (Rao, from memory; REFERENCES §1): zeta = 0.3 peaks at |T| = 1.995, so 1 µm/s
+    # never exceeds VC-A 50 µm/s.
     result = max_natural_frequency_for_criterion(flat_floor_spectrum(1 * UM), "VC-A",
                                                  damping_ratio=0.3, max_hz=300.0)
     assert result.bound == "search range"
@@ -286,7 +297,8 @@ def test_inverse_already_met_over_whole_range():
 
 
 def test_inverse_with_failing_window_below_a_passing_top():
-    # REFERENCES §1: zeta = 0.05 peaks at |T| = 10.06, so 20 µm/s * 10 > VC-A 50 µm/s when the
+    # Peak table (Rao, from memory; REFERENCES §1): zeta = 0.05 peaks at |T| = 10.06, so 20 µm/s
+    # * 10 > VC-A 50 µm/s when the
     # resonance sits in a band, while a stiff mount (|T| -> 1) passes 20 < 50.
     result = max_natural_frequency_for_criterion(flat_floor_spectrum(20 * UM), "VC-A",
                                                  damping_ratio=0.05)
@@ -296,7 +308,8 @@ def test_inverse_with_failing_window_below_a_passing_top():
 
 
 def test_inverse_cannot_be_met():
-    # 1000 µm/s at 1 Hz against VC-G 0.78 µm/s needs |T| <= 7.8e-4, i.e. r ~ 36 (REFERENCES §2
+    # 1000 µm/s at 1 Hz against VC-G 0.78 µm/s needs |T| <= 7.8e-4, i.e. r ~ 36 (undamped Vigran
+    # eq. 2.33, REFERENCES §2
     # undamped relation), fn ~ 0.028 Hz: below the 0.5 Hz search floor.
     floor = floor_spectrum([1.0], [1000 * UM])
     with pytest.raises(TargetUnreachable, match="VC-G is not met") as info:

@@ -49,7 +49,7 @@ def test_plotted_data_equal_core_data(view, failing_check):
     assert np.allclose(y, prediction.equipment_velocity_m_s * 1e6, rtol=1e-15)
     x, y = _original(view.limit_curve)
     assert np.array_equal(x, failing_check.band_hz)
-    assert np.allclose(y, 12.5, rtol=1e-12)  # VC-C, 12.5 µm/s (REFERENCES §4)
+    assert np.allclose(y, 12.5, rtol=1e-12)  # VC-C, 12.5 µm/s (B. Davis 2008 note, REFERENCES §4)
     x, y = _original(view.worst_marker)
     assert x.tolist() == [failing_check.worst_band_hz]
     assert y[0] == pytest.approx(failing_check.worst_predicted_velocity_m_s * 1e6, rel=1e-15)
@@ -72,7 +72,8 @@ def test_log_axes_without_si_prefix(view, failing_check):
 
 def test_pass_verdict(view):
     check = check_criterion(parse_floor_csv(SURVEY), "VC-A", 1.0, damping_ratio=0.1)
-    # Resonant 1 Hz band: 4 µm/s x |T|(r = 1, zeta = 0.1) = 5.099 (REFERENCES §1) = 20 µm/s < VC-A 50;
+    # Resonant 1 Hz band: 4 µm/s x |T|(r = 1, zeta = 0.1) = 5.099 (Vigran eq. 2.33, REFERENCES
+    # §1) = 20 µm/s < VC-A 50;
     # every higher band is isolated (r >= 2, |T| < 0.36) or already below 50 µm/s.
     assert check.passed
     view.show_result(check)

@@ -17,7 +17,8 @@ from core.two_stage import (
 )
 
 TWO_PI = 2 * math.pi
-# REFERENCES §7 check system: m1 = 10 kg on k1 = 4e5 N/m to ground, m2 = 1 kg on k2 = 4e5 N/m on m1.
+# Bies & Hansen two-stage check system (REFERENCES §7): m1 = 10 kg on k1 = 4e5 N/m to ground, m2 = 1
+# kg on k2 = 4e5 N/m on m1.
 CHECK = dict(intermediate_mass_kg=10.0, lower_stiffness_n_per_m=4e5,
              machine_mass_kg=1.0, upper_stiffness_n_per_m=4e5)
 
@@ -46,7 +47,7 @@ def test_published_check_values_undamped():
 
 
 def test_high_frequency_asymptote():
-    # REFERENCES §7: T -> k1 k2 / (w^4 m1 m2) at high frequency, -80 dB/decade undamped.
+    # Bies & Hansen (REFERENCES §7): T -> k1 k2 / (w^4 m1 m2) at high frequency, -80 dB/decade undamped.
     system = TwoStageSystem(**CHECK)
     omega = TWO_PI * np.array([1e4, 1e5])
     t = np.abs(two_stage_transmissibility(system, omega))
@@ -63,7 +64,7 @@ def test_natural_frequencies_of_two_mass_chain():
     assert modes.natural_frequencies_hz[0] == pytest.approx(30.2, abs=0.05)
     assert modes.natural_frequencies_hz[1] == pytest.approx(106.0, abs=0.05)
     # With the intermediate mass made rigid (very stiff lower mounts) the machine alone: 100.66 Hz
-    # (REFERENCES §5, "100 Hz"); the upper frequency moves to the lower mounts.
+    # (Vigran §2.5, REFERENCES §5, "100 Hz"); the upper frequency moves to the lower mounts.
     stiff = two_stage_modes(TwoStageSystem(10.0, 4e11, 1.0, 4e5))
     assert stiff.natural_frequencies_hz[0] == pytest.approx(100.66, abs=0.01)
     assert single_stage_natural_frequency_hz(TwoStageSystem(**CHECK)) == pytest.approx(100.66, abs=0.01)
@@ -109,7 +110,7 @@ def test_hysteretic_damping_matches_direct_complex_solve_and_frd():
 
 def test_single_stage_comparison_matches_transfer_function():
     # python-control tf of the machine on the upper mount to ground: (c s + k)/(m s^2 + c s + k)
-    # (REFERENCES §8 viscous T(s)); gain = 20 log10(|T single| / |T two|).
+    # (viscous T(s), Vigran eq. 2.32 / REFERENCES §8); gain = 20 log10(|T single| / |T two|).
     system = TwoStageSystem(**CHECK, lower_damping_n_s_per_m=150.0, upper_damping_n_s_per_m=20.0)
     speed = TWO_PI * 300.0
     single = control.tf([20.0, 4e5], [1.0, 20.0, 4e5])
@@ -124,8 +125,8 @@ def test_single_stage_comparison_matches_transfer_function():
 
 
 def test_gain_undamped_at_300_hz_from_published_values():
-    # REFERENCES §7: two-stage 1.463e-3; single stage 1/(r^2 - 1) with r = 300/100.66 (REFERENCES §1,
-    # zeta = 0; fn = 100.66 Hz REFERENCES §5) -> 0.1269; gain = 38.8 dB.
+    # Bies & Hansen (REFERENCES §7): two-stage 1.463e-3; single stage 1/(r^2 - 1) with r = 300/100.66
+    # (Vigran eq. 2.33, zeta = 0; fn = 100.66 Hz, Vigran §2.5) -> 0.1269; gain = 38.8 dB.
     comparison = compare_with_single_stage(TwoStageSystem(**CHECK), TWO_PI * 300.0)
     r = 300.0 / 100.658
     assert comparison.single_stage_transmissibility == pytest.approx(1 / (r * r - 1), rel=1e-4)

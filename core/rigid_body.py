@@ -375,24 +375,50 @@ def _energy_share(shapes: np.ndarray, mass: np.ndarray) -> np.ndarray:
     return (weighted**2 / np.sum(weighted**2, axis=0)).T
 
 
-def _solve_modes(stiffness: np.ndarray, mass: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """``eigh(K, M)``; InputError naming the free coordinate if K leaves a motion unresisted."""
+def _named_directions(subspace: np.ndarray) -> list[tuple[str | None, np.ndarray]]:
+    """Machine axes lying in an orthonormal subspace (3, d) of directions, else its own columns."""
+    named = [(axis, np.eye(3)[index]) for index, axis in enumerate("xyz")
+             if np.linalg.norm(subspace.T @ np.eye(3)[index]) > 0.999]
+    if len(named) == subspace.shape[1]:
+        return named
+    return [(None, column) for column in subspace.T]
+
+
+def _direction_text(direction: np.ndarray) -> str:
+    return "({:.2g}, {:.2g}, {:.2g})".format(*(np.round(direction, 3) + 0.0))
+
+
+def _free_motion_error(free_shapes: np.ndarray, cg_m: np.ndarray) -> InputError:
+    """InputError naming the motions a layout leaves without stiffness (free_shapes: (6, f) null space of K)."""
+    basis = np.linalg.qr(free_shapes)[0]
+    rotation_dirs, singular, combos = np.linalg.svd(basis[3:], full_matrices=True)
+    turning = int(np.sum(singular > 1e-6))
+    advice = []
+    translations = np.linalg.qr(basis[:3] @ combos[turning:].T)[0] if turning < basis.shape[1] else np.zeros((3, 0))
+    for axis, direction in _named_directions(translations):
+        where = axis or _direction_text(direction)
+        advice.append(f"no stiffness along {where}: give some mounts stiffness in that direction")
+    for axis, direction in _named_directions(rotation_dirs[:, :turning]):
+        weights = (rotation_dirs[:, :turning].T @ direction) / singular[:turning]
+        motion = basis @ (combos[:turning].T @ weights)
+        line = f"parallel to {axis}" if axis else f"along {_direction_text(direction)}"
+        if translations.shape[1] == 0:
+            point = cg_m + np.cross(direction, motion[:3])
+            line = f"through {_direction_text(point)} m {line}"
+        name = f"θ{axis}" if axis else "rotation"
+        advice.append(
+            f"no stiffness in {name} (turning about the line {line}): "
+            f"place a mount away from that line, with stiffness across it"
+        )
+    return InputError("mounts", "the layout gives " + "; ".join(advice))
+
+
+def _solve_modes(stiffness: np.ndarray, mass: np.ndarray, cg_m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """``eigh(K, M)``; InputError naming the free motions if K leaves any unresisted."""
     eigenvalues, shapes = scipy.linalg.eigh(stiffness, mass)
     free = eigenvalues <= _FREE_MOTION_RELATIVE * max(eigenvalues[-1], 0.0)
-    if np.any(free) or eigenvalues[-1] <= 0:
-        share = _energy_share(shapes[:, free], mass)
-        names = sorted({COORDINATES[int(np.argmax(row))] for row in share}, key=COORDINATES.index)
-        advice = []
-        for name in names:
-            if name.startswith("θ"):
-                across = " or ".join(axis for axis in "xyz" if axis != name[1])
-                advice.append(
-                    f"no stiffness in {name} (rotation about the {name[1]} axis): spread the mounts "
-                    f"away from that axis and give them stiffness across it (along {across})"
-                )
-            else:
-                advice.append(f"no stiffness in {name}: give some mounts stiffness along {name}")
-        raise InputError("mounts", "the layout gives " + "; ".join(advice))
+    if np.any(free):
+        raise _free_motion_error(shapes[:, free], cg_m)
     return eigenvalues, shapes
 
 
@@ -455,7 +481,7 @@ def modes(body: RigidBody, mounts: Sequence[Mount]) -> RigidBodyModes:
     mounts = _checked_mounts(mounts)
     mass = mass_matrix(body)
     stiffness = stiffness_matrix(mounts, body.cg_m)
-    eigenvalues, shapes = _solve_modes(stiffness, mass)
+    eigenvalues, shapes = _solve_modes(stiffness, mass, body.cg_m)
     share = _energy_share(shapes, mass)
     dominant = tuple(COORDINATES[int(index)] for index in np.argmax(share, axis=1))
     frequencies = np.sqrt(eigenvalues) / (2.0 * np.pi)
@@ -521,7 +547,7 @@ def static_loads(body: RigidBody, mounts: Sequence[Mount], g=STANDARD_GRAVITY) -
     mounts = _checked_mounts(mounts)
     mass = mass_matrix(body)
     stiffness = stiffness_matrix(mounts, body.cg_m)
-    _solve_modes(stiffness, mass)
+    _solve_modes(stiffness, mass, body.cg_m)
     weight = body.mass_kg * gravity
     load = np.array([0.0, 0.0, -weight, 0.0, 0.0, 0.0])
     displacement = scipy.linalg.solve(stiffness, load, assume_a="sym")
@@ -656,7 +682,7 @@ def mount_forces(
     mounts = _checked_mounts(mounts)
     mass = mass_matrix(body)
     stiffness = stiffness_matrix(mounts, body.cg_m)
-    _solve_modes(stiffness, mass)
+    _solve_modes(stiffness, mass, body.cg_m)
     try:
         frequency = np.asarray(frequency_hz, dtype=float)
     except (TypeError, ValueError):

@@ -458,20 +458,25 @@ def test_bad_input_names_the_field(build, field):
 
 
 @pytest.mark.parametrize(
-    "mounts, coordinate",
+    "mounts, cg, expected",
     [
-        ([Mount((x, 0.0, 0.0), (1e5, 1e5, 1e5)) for x in (-1.0, 0.0, 1.0)], "θx"),  # all on the x axis
-        (_four(stiffness=(0, 0, 4e5)), "θz"),  # vertical-only mounts: nothing resists yaw
-        (_four(stiffness=(0, 1e5, 4e5)), "x"),
+        # all on the x axis: nothing resists turning about that line (statics: a line of supports)
+        ([Mount((x, 0.0, 0.0), (1e5, 1e5, 1e5)) for x in (-1.0, 0.0, 1.0)], (0, 0, 0.5),
+         "no stiffness in θx (turning about the line through (0, 0, 0) m parallel to x)"),
+        # vertical-only mounts: nothing resists sliding or yaw
+        (_four(stiffness=(0, 0, 4e5)), (0, 0, 0), "no stiffness along x"),
+        (_four(stiffness=(0, 0, 4e5)), (0, 0, 0), "no stiffness in θz (turning about the line parallel to z)"),
+        (_four(stiffness=(0, 1e5, 4e5)), (0, 0, 0), "no stiffness along x"),
     ],
 )
-def test_free_motion_is_refused_naming_the_coordinate(mounts, coordinate):
+def test_free_motion_is_refused_naming_the_motion(mounts, cg, expected):
+    body = RigidBody(**{**GOOD_BODY, "cg_m": cg})
     with pytest.raises(InputError) as error:
-        modes(RigidBody(**GOOD_BODY), mounts)
+        modes(body, mounts)
     assert error.value.field == "mounts"
-    assert f"no stiffness in {coordinate}" in str(error.value)
+    assert expected in str(error.value)
     with pytest.raises(InputError):
-        static_loads(RigidBody(**GOOD_BODY), mounts)
+        static_loads(body, mounts)
 
 
 def test_mounts_may_be_any_iterable():

@@ -1,0 +1,370 @@
+"""The transmissibility plots: magnitude and phase over a shared log frequency axis.
+
+Every plot item is created once in ``__init__``; :meth:`TransmissibilityPlots.show_design`
+only calls ``setData``/``setValue`` on them. Axis ranges are set explicitly
+(never auto-ranged), so a slider drag does not make the axes jump. All
+numbers come from :mod:`core.curves` and :mod:`core.transmissibility`.
+
+pyqtgraph log axes take log10 coordinates for every item other than
+PlotDataItem (lines, regions, text), so those positions go through ``_lx``/``_ly``.
+"""
+from __future__ import annotations
+
+import math
+import os
+
+os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
+from PySide6 import QtCore, QtGui, QtWidgets  # noqa: E402  (PySide6 before pyqtgraph)
+import pyqtgraph as pg  # noqa: E402
+
+from app.style import FONT_POINTS, LINE_WIDTH, MARKER_SIZE, PALETTE  # noqa: E402
+from core.curves import (  # noqa: E402
+    X_AXIS_LABELS, curve_family, frequency_axis, magnitude_on_scale, operating_points,
+    ratio_axis, ratio_from_axis, readout)
+from core.design import DesignInputs  # noqa: E402
+from core.design_model import Evaluation  # noqa: E402
+from core.project import ViewSettings  # noqa: E402
+from core.transmissibility import CROSSOVER_RATIO, transmissibility_db  # noqa: E402
+
+pg.setConfigOptions(background=PALETTE["background"], foreground=PALETTE["foreground"],
+                    antialias=True, useOpenGL=False)
+
+#: Most reference curves drawn (ViewSettings allows up to 20).
+MAX_REFERENCE_CURVES = 20
+#: Fixed axis ranges.
+MAGNITUDE_RANGE = (1e-3, 2e2)
+MAGNITUDE_DB_RANGE = (-60.0, 46.0)
+PHASE_RANGE = (-185.0, 5.0)
+RATIO_VIEW = (0.1, 10.0)
+RATIO_VIEW_WIDE = (0.1, 100.0)
+
+
+def _lx(value: float) -> float:
+    """Position on a log10 axis."""
+    return math.log10(value)
+
+
+class TransmissibilityPlots(pg.GraphicsLayoutWidget):
+    """Magnitude and phase of transmissibility with the design point.
+
+    Parameters
+    ----------
+    scale : float
+        Multiplies line widths, marker and font sizes (exports draw larger).
+    interactive : bool
+        Crosshair readout under the mouse (off for exports).
+
+    Signals
+    -------
+    readout_changed(object)
+        A :class:`core.curves.Readout` under the mouse, or None when it leaves the plots.
+    """
+
+    readout_changed = QtCore.Signal(object)
+
+    def __init__(self, parent=None, scale: float = 1.0, interactive: bool = True):
+        super().__init__(parent)
+        self.scale = float(scale)
+        self.ratio = ratio_axis()
+        self._x_axis = None
+        self._x_range = None
+        self._magnitude_scale = None
+        self._damping = None
+        self._natural_frequency_hz = None
+        self.ci.layout.setContentsMargins(*(4 * self.scale,) * 4)
+        self.ci.layout.setVerticalSpacing(6 * self.scale)
+
+        self.magnitude_plot = self.addPlot(row=0, col=0)
+        self.phase_plot = self.addPlot(row=1, col=0)
+        self.ci.layout.setRowStretchFactor(0, 3)
+        self.ci.layout.setRowStretchFactor(1, 2)
+        self.phase_plot.setXLink(self.magnitude_plot)
+        for plot in (self.magnitude_plot, self.phase_plot):
+            plot.setMenuEnabled(False)
+            plot.hideButtons()
+            plot.getViewBox().setMouseEnabled(x=False, y=False)
+            plot.getViewBox().disableAutoRange()
+            plot.showGrid(x=True, y=True, alpha=PALETTE["grid_alpha"])
+            for name in ("left", "bottom"):
+                axis = plot.getAxis(name)
+                axis.enableAutoSIPrefix(False)
+                axis.setTextPen(PALETTE["foreground"])
+                axis.setPen(PALETTE["foreground"])
+        self._style_axes()
+
+        # ---- fixed items: isolation region, crossover lines, speed band, target line
+        self.isolation_regions = []
+        self.crossover_lines = []
+        self.speed_bands = []
+        for plot in (self.magnitude_plot, self.phase_plot):
+            region = pg.LinearRegionItem(values=(0.0, 1.0), movable=False,
+                                         brush=pg.mkBrush(*PALETTE["isolation_fill"]),
+                                         pen=pg.mkPen(None))
+            region.setZValue(-20)
+            plot.addItem(region, ignoreBounds=True)
+            self.isolation_regions.append(region)
+            band = pg.LinearRegionItem(values=(0.0, 0.0), movable=False,
+                                       brush=pg.mkBrush(*PALETTE["operating_band"]),
+                                       pen=pg.mkPen(None))
+            band.setZValue(-15)
+            plot.addItem(band, ignoreBounds=True)
+            self.speed_bands.append(band)
+            line = pg.InfiniteLine(angle=90, movable=False,
+                                   pen=self._pen("crossover", QtCore.Qt.PenStyle.DashLine))
+            line.setZValue(-10)
+            plot.addItem(line, ignoreBounds=True)
+            self.crossover_lines.append(line)
+        self.crossover_label = pg.TextItem("√2", color=PALETTE["crossover"], anchor=(0.0, 1.0))
+        self.crossover_label.setFont(self._font(0.9))
+        self.magnitude_plot.addItem(self.crossover_label, ignoreBounds=True)
+        self.isolation_label = pg.TextItem("isolation region (r > √2)", color=PALETTE["isolation_text"],
+                                           anchor=(0.0, 1.0))
+        self.isolation_label.setFont(self._font(0.9))
+        self.magnitude_plot.addItem(self.isolation_label, ignoreBounds=True)
+        self.target_line = pg.InfiniteLine(angle=0, movable=False,
+                                           pen=self._pen("target", QtCore.Qt.PenStyle.DashDotLine))
+        self.target_line.setZValue(-5)
+        self.magnitude_plot.addItem(self.target_line, ignoreBounds=True)
+        self.target_label = pg.TextItem("", color=PALETTE["target"], anchor=(1.0, 1.0))
+        self.target_label.setFont(self._font(0.9))
+        self.magnitude_plot.addItem(self.target_label, ignoreBounds=True)
+
+        # ---- curves: reference family (faint), then the design curve (bold) on top
+        self.reference_magnitude = []
+        self.reference_phase = []
+        self.reference_labels = []
+        for _ in range(MAX_REFERENCE_CURVES):
+            self.reference_magnitude.append(self.magnitude_plot.plot(pen=self._pen("reference")))
+            self.reference_phase.append(self.phase_plot.plot(pen=self._pen("reference")))
+            label = pg.TextItem("", color=PALETTE["reference"], anchor=(0.0, 0.5))
+            label.setFont(self._font(0.8))
+            self.magnitude_plot.addItem(label, ignoreBounds=True)
+            self.reference_labels.append(label)
+        self.design_magnitude = self.magnitude_plot.plot(pen=self._pen("design"))
+        self.design_phase = self.phase_plot.plot(pen=self._pen("design"))
+        self.design_magnitude.setZValue(10)
+        self.design_phase.setZValue(10)
+        marker = dict(pen=None, symbol="o", symbolSize=MARKER_SIZE * self.scale,
+                      symbolBrush=PALETTE["operating"],
+                      symbolPen=pg.mkPen(PALETTE["foreground"], width=1.0 * self.scale))
+        self.operating_magnitude = self.magnitude_plot.plot(**marker)
+        self.operating_phase = self.phase_plot.plot(**marker)
+        self.operating_magnitude.setZValue(20)
+        self.operating_phase.setZValue(20)
+
+        self.legend = pg.LegendItem(offset=(-8 * self.scale, 8 * self.scale),
+                                    labelTextSize=f"{round(FONT_POINTS * 0.95 * self.scale)}pt",
+                                    brush=pg.mkBrush(255, 255, 255, 220),
+                                    pen=pg.mkPen(PALETTE["reference"]))
+        self.legend.setParentItem(self.magnitude_plot.getViewBox())
+        self.legend.addItem(self.design_magnitude, "design")
+        self.legend.addItem(self.reference_magnitude[0], "reference")
+        self.legend.addItem(self.operating_magnitude, "operating point")
+        self.legend.addItem(pg.PlotDataItem(pen=self._pen("target", QtCore.Qt.PenStyle.DashDotLine)), "target")
+        self._legend_texts = {}
+
+        # ---- crosshair
+        self.crosshair_lines = []
+        if interactive:
+            for plot in (self.magnitude_plot, self.phase_plot):
+                line = pg.InfiniteLine(angle=90, movable=False, pen=self._pen("crosshair"))
+                line.setVisible(False)
+                line.setZValue(30)
+                plot.addItem(line, ignoreBounds=True)
+                self.crosshair_lines.append(line)
+            self.scene().sigMouseMoved.connect(self._mouse_moved)
+        self.phase_plot.getAxis("left").setTicks(
+            [[(v, f"{v:g}") for v in (0, -45, -90, -135, -180)], []])
+        self.phase_plot.setYRange(*PHASE_RANGE, padding=0)
+
+    # ------------------------------------------------------------------ styling
+    def _pen(self, role: str, style=QtCore.Qt.PenStyle.SolidLine) -> QtGui.QPen:
+        colour = PALETTE[role] if role != "crosshair" else PALETTE["crosshair"]
+        pen = pg.mkPen(colour, width=LINE_WIDTH[role] * self.scale)
+        pen.setStyle(style)
+        pen.setCapStyle(QtCore.Qt.PenCapStyle.RoundCap)
+        return pen
+
+    def _font(self, factor: float = 1.0) -> QtGui.QFont:
+        font = QtGui.QFont()
+        font.setPixelSize(max(6, round(FONT_POINTS * 1.3 * factor * self.scale)))
+        return font
+
+    def _style_axes(self) -> None:
+        font = self._font(0.95)
+        for plot in (self.magnitude_plot, self.phase_plot):
+            for name in ("left", "bottom"):
+                axis = plot.getAxis(name)
+                axis.setStyle(tickFont=font, tickLength=round(-6 * self.scale),
+                              tickTextOffset=round(4 * self.scale))
+                axis.setPen(pg.mkPen(PALETTE["foreground"], width=max(1.0, self.scale)))
+            plot.getAxis("left").setWidth(round(62 * self.scale))
+        self.magnitude_plot.getAxis("bottom").setStyle(showValues=False)
+        self.magnitude_plot.getAxis("bottom").setHeight(round(4 * self.scale))
+
+    def _label_style(self) -> dict:
+        return {"font-size": f"{round(FONT_POINTS * 1.3 * self.scale)}px", "color": PALETTE["foreground"]}
+
+    # ------------------------------------------------------------------ state
+    def show_design(self, design: DesignInputs, evaluation: Evaluation, view: ViewSettings) -> None:
+        """Draw the curves, design point and lines for a valid design and its synthesis."""
+        result = evaluation.result
+        damping = design.damping
+        natural_hz = result.natural_frequency_hz if result is not None else None
+        x_axis = view.x_axis if natural_hz is not None else "ratio"
+        self._damping = damping
+        self._natural_frequency_hz = natural_hz
+        self._set_axes(x_axis, view.magnitude_scale, design, result)
+
+        def x_of(ratio):
+            return frequency_axis(ratio, x_axis, natural_hz)
+
+        def y_of(magnitude):
+            return magnitude_on_scale(magnitude, view.magnitude_scale)
+
+        curves = curve_family(damping, view.reference_damping, self.ratio)
+        x = x_of(self.ratio)
+        design_curve = curves[0]
+        self.design_magnitude.setData(x, y_of(design_curve.magnitude))
+        self.design_phase.setData(x, design_curve.phase_deg)
+        references = curves[1:]
+        for i in range(MAX_REFERENCE_CURVES):
+            visible = i < len(references)
+            for item in (self.reference_magnitude[i], self.reference_phase[i], self.reference_labels[i]):
+                item.setVisible(visible)
+            if not visible:
+                continue
+            curve = references[i]
+            self.reference_magnitude[i].setData(x, y_of(curve.magnitude))
+            self.reference_phase[i].setData(x, curve.phase_deg)
+            top = int(curve.magnitude.argmax())
+            peak_y = float(y_of(curve.magnitude[top]))
+            self._set_text(self.reference_labels[i], curve.label,
+                           _lx(float(x[top]) * 1.06), _lx(peak_y) if view.magnitude_scale == "ratio" else peak_y)
+
+        crossover = float(x_of(CROSSOVER_RATIO))
+        right = _lx(float(x_of(self.ratio[-1])))
+        for region in self.isolation_regions:
+            region.setRegion((_lx(crossover), right))
+        for line in self.crossover_lines:
+            line.setValue(_lx(crossover))
+        y_label = self._y_pos(1.0 if view.magnitude_scale == "ratio" else 0.0, view.magnitude_scale, top=True)
+        self.crossover_label.setPos(_lx(crossover) + 0.01, y_label)
+        bottom = _lx(MAGNITUDE_RANGE[0]) + 0.05 if view.magnitude_scale == "ratio" else MAGNITUDE_DB_RANGE[0] + 1.0
+        self.isolation_label.setPos(_lx(crossover) + 0.03, bottom)
+
+        target = 1.0 - design.isolation_percent / 100.0
+        target_y = float(transmissibility_db(target)) if view.magnitude_scale == "db" else _lx(target)
+        self.target_line.setValue(target_y)
+        self.target_label.setText(f"target {design.isolation_percent:g} %")
+        self.target_label.setPos(_lx(self._x_range[1]) - 0.02, target_y)
+
+        if result is not None:
+            points = operating_points(result.frequency_ratio, result.frequency_ratio_max, damping)
+            px = x_of(points.ratio)
+            self.operating_magnitude.setData(px, y_of(points.magnitude))
+            self.operating_phase.setData(px, points.phase_deg)
+            for band in self.speed_bands:
+                if points.band is None:
+                    band.setVisible(False)
+                else:
+                    band.setRegion((_lx(float(px[0])), _lx(float(px[-1]))))
+                    band.setVisible(True)
+        else:
+            self.operating_magnitude.setData([], [])
+            self.operating_phase.setData([], [])
+            for band in self.speed_bands:
+                band.setVisible(False)
+        self._set_legend(0, f"{design_curve.label} (design)")
+        symbol = "ζ" if damping.model == "viscous" else "η"
+        self._set_legend(1, f"reference {symbol}")
+        self._set_legend(3, f"target {design.isolation_percent:g} %")
+
+    def _set_text(self, item: pg.TextItem, text: str, x: float, y: float) -> None:
+        if item.toPlainText() != text:
+            item.setText(text)
+        item.setPos(x, y)
+
+    def _set_legend(self, index: int, text: str) -> None:
+        if self._legend_texts.get(index) != text:
+            self._legend_texts[index] = text
+            self.legend.items[index][1].setText(text)
+
+    def _y_pos(self, value, scale: str, top: bool = False) -> float:
+        """y position of a label: a value, or near the top of the axis."""
+        if value is None:
+            return _lx(MAGNITUDE_RANGE[1]) - 0.05 if scale == "ratio" else MAGNITUDE_DB_RANGE[1] - 1.0
+        return _lx(value) if scale == "ratio" else float(value)
+
+    def _set_axes(self, x_axis: str, scale: str, design: DesignInputs, result) -> None:
+        """Set log modes, labels and fixed ranges, only when they change."""
+        if x_axis == "ratio":
+            high = RATIO_VIEW_WIDE if result is not None and result.frequency_ratio_max > 8.0 else RATIO_VIEW
+            x_range = high
+        else:
+            low_speed, high_speed = design.speed_range_rpm
+            factor = 1.0 if x_axis == "rpm" else 1.0 / 60.0
+            x_range = (low_speed * factor / 20.0, high_speed * factor * 2.0)
+        if x_axis != self._x_axis or scale != self._magnitude_scale:
+            self._x_axis = x_axis
+            self._magnitude_scale = scale
+            self.magnitude_plot.setLogMode(x=True, y=scale == "ratio")
+            self.phase_plot.setLogMode(x=True, y=False)
+            text, units = X_AXIS_LABELS[x_axis]
+            self.phase_plot.setLabel("bottom", text, units=units or None, **self._label_style())
+            self.magnitude_plot.setLabel("left", "Transmissibility" + (" (dB)" if scale == "db" else ""),
+                                         **self._label_style())
+            self.phase_plot.setLabel("left", "Phase (°)", **self._label_style())
+            if scale == "ratio":
+                self.magnitude_plot.setYRange(_lx(MAGNITUDE_RANGE[0]), _lx(MAGNITUDE_RANGE[1]), padding=0)
+            else:
+                self.magnitude_plot.setYRange(*MAGNITUDE_DB_RANGE, padding=0)
+            self._x_range = None
+        if x_range != self._x_range:
+            self._x_range = x_range
+            self.magnitude_plot.setXRange(_lx(x_range[0]), _lx(x_range[1]), padding=0)
+            self._set_ticks(x_axis, scale)
+
+    def _set_ticks(self, x_axis: str, scale: str) -> None:
+        """Decade ticks with 2 and 5 between them on log axes (pyqtgraph's own for absolute frequency)."""
+        low, high = self._x_range
+        decades = range(math.floor(math.log10(low)) - 1, math.ceil(math.log10(high)) + 1)
+        major = [(_lx(m * 10.0 ** e), f"{m * 10.0 ** e:g}") for e in decades for m in (1, 2, 5)]
+        minor = [(_lx(m * 10.0 ** e), "") for e in decades for m in (3, 4, 6, 7, 8, 9)]
+        for plot in (self.magnitude_plot, self.phase_plot):
+            plot.getAxis("bottom").setTicks([major, minor])
+        left = self.magnitude_plot.getAxis("left")
+        if scale == "ratio":
+            left.setTicks([[(_lx(v), f"{v:g}") for v in (0.001, 0.01, 0.1, 1, 10, 100)],
+                           [(_lx(m * 10.0 ** e), "") for e in range(-3, 2) for m in (2, 5)]])
+        else:
+            left.setTicks([[(v, f"{v:g}") for v in range(-60, 41, 20)], []])
+
+    # ------------------------------------------------------------------ crosshair
+    def _mouse_moved(self, position) -> None:
+        inside = None
+        for plot in (self.magnitude_plot, self.phase_plot):
+            if plot.sceneBoundingRect().contains(position):
+                inside = plot
+        if inside is None or self._damping is None:
+            for line in self.crosshair_lines:
+                line.setVisible(False)
+            self.readout_changed.emit(None)
+            return
+        x_log = inside.getViewBox().mapSceneToView(position).x()
+        self.show_crosshair_at(x_log)
+
+    def show_crosshair_at(self, x_log: float):
+        """Put the crosshair at a log10 x position and emit the readout there (from core)."""
+        x_axis = self._x_axis or "ratio"
+        ratio = ratio_from_axis(10.0 ** x_log, x_axis, self._natural_frequency_hz)
+        value = readout(ratio, self._damping)
+        for line in self.crosshair_lines:
+            line.setValue(x_log)
+            line.setVisible(value is not None)
+        self.readout_changed.emit(value)
+        return value
+
+    # ------------------------------------------------------------------ data for tests and CSV
+    def visible_reference_count(self) -> int:
+        return sum(1 for item in self.reference_magnitude if item.isVisible())

@@ -1,0 +1,150 @@
+"""The results panel: the synthesis of the current design, in display units.
+
+Every number is a field of :class:`core.synthesis.DesignResult`, converted by
+:func:`core.units.format_value`. When synthesis fails the core's message
+replaces the numbers.
+"""
+from __future__ import annotations
+
+from PySide6 import QtCore, QtWidgets
+
+from app.style import CAUTION_STYLE, FIELD_ERROR_STYLE
+from core.cautions import CAUTION_LINE
+from core.design import DesignInputs
+from core.design_model import Evaluation
+from core.units import format_value
+
+#: Rows of the results panel: key, label.
+ROWS = (
+    ("natural_frequency", "Natural frequency fn"),
+    ("frequency_ratio", "Frequency ratio r"),
+    ("transmissibility", "Transmissibility |T|"),
+    ("isolation", "Isolation"),
+    ("phase", "Phase of T"),
+    ("stiffness_total", "Stiffness, total (dynamic)"),
+    ("stiffness_per_mount", "Stiffness per mount"),
+    ("damping", "Damping coefficient per mount"),
+    ("static_deflection", "Static deflection"),
+    ("load_per_mount", "Load per mount"),
+    ("peak", "Resonance peak"),
+    ("worst", "Worst over speed range"),
+    ("excitation_force", "Exciting force"),
+    ("transmitted_force", "Transmitted force, total"),
+    ("transmitted_per_mount", "Transmitted force per mount"),
+    ("motion", "Machine motion"),
+)
+
+EXCITATION_ROWS = ("excitation_force", "transmitted_force", "transmitted_per_mount", "motion")
+
+
+def _values(values, kind: str, system: str) -> str:
+    """One value if all are equal, else the list."""
+    values = tuple(values)
+    if values and max(values) - min(values) <= 1e-9 * max(abs(max(values)), 1e-300):
+        return format_value(values[0], kind, system) + (f"  (× {len(values)})" if len(values) > 1 else "")
+    return ", ".join(format_value(v, kind, system, 3) for v in values)
+
+
+def result_texts(design: DesignInputs, evaluation: Evaluation, system: str) -> dict[str, str]:
+    """Display text of every results row for a successful evaluation."""
+    result = evaluation.result
+    ranged = result.speeds_rpm[1] > result.speeds_rpm[0]
+    texts = {
+        "natural_frequency": f"{format_value(result.natural_frequency_hz, 'frequency', system)}  "
+                             f"({format_value(result.natural_frequency_rpm, 'speed', system)})",
+        "frequency_ratio": f"{result.frequency_ratio:.4g}" + (f" to {result.frequency_ratio_max:.4g}" if ranged else "")
+                           + f"  at {format_value(result.speeds_rpm[0], 'speed', system)}",
+        "transmissibility": f"{result.transmissibility:.4g}",
+        "isolation": f"{result.isolation_percent:.4g} %   ({result.isolation_db:.3g} dB)",
+        "phase": f"{result.phase_deg:.4g}°",
+        "stiffness_total": format_value(result.stiffness_total_n_per_m, "stiffness", system),
+        "stiffness_per_mount": _values(result.stiffness_per_mount_n_per_m, "stiffness", system),
+        "damping": _values(result.damping_per_mount_n_s_per_m, "damping", system),
+        "static_deflection": format_value(result.static_deflection_m, "length", system),
+        "load_per_mount": _values(result.load_per_mount_n, "force", system),
+        "peak": ("unbounded (no damping)" if result.peak_transmissibility == float("inf") else
+                 f"{result.peak_transmissibility:.4g}× at r = {result.peak_frequency_ratio:.4g}"),
+        "worst": f"{result.worst_transmissibility:.4g} at {format_value(result.worst_speed_rpm, 'speed', system)}",
+    }
+    if result.excitation_force_n is not None:
+        texts.update({
+            "excitation_force": format_value(result.excitation_force_n, "force", system),
+            "transmitted_force": format_value(result.transmitted_force_n, "force", system),
+            "transmitted_per_mount": _values(result.transmitted_force_per_mount_n, "force", system),
+            "motion": f"{format_value(result.machine_displacement_m, 'length', system)} 0-peak, "
+                      f"{format_value(result.machine_velocity_m_s, 'velocity', system)}",
+        })
+    return texts
+
+
+class ResultsPanel(QtWidgets.QWidget):
+    """Live synthesis results, warnings and the caution line.
+
+    Attributes
+    ----------
+    value_labels : dict of str to QLabel
+        The value label of each row (keys of :data:`ROWS`), for tests.
+    """
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        outer = QtWidgets.QVBoxLayout(self)
+        outer.setContentsMargins(6, 6, 6, 6)
+        self.error_label = QtWidgets.QLabel("")
+        self.error_label.setObjectName("results_error")
+        self.error_label.setWordWrap(True)
+        self.error_label.setStyleSheet(FIELD_ERROR_STYLE)
+        self.error_label.setVisible(False)
+        outer.addWidget(self.error_label)
+        self.table = QtWidgets.QWidget()
+        form = QtWidgets.QFormLayout(self.table)
+        form.setContentsMargins(0, 0, 0, 0)
+        form.setVerticalSpacing(4)
+        self.value_labels: dict[str, QtWidgets.QLabel] = {}
+        self.row_labels: dict[str, QtWidgets.QLabel] = {}
+        for key, text in ROWS:
+            label = QtWidgets.QLabel(text)
+            value = QtWidgets.QLabel("—")
+            value.setObjectName(f"result_{key}")
+            value.setWordWrap(True)
+            value.setTextInteractionFlags(QtCore.Qt.TextInteractionFlag.TextSelectableByMouse)
+            form.addRow(label, value)
+            self.value_labels[key] = value
+            self.row_labels[key] = label
+        outer.addWidget(self.table)
+        warnings_title = QtWidgets.QLabel("<b>Warnings</b>")
+        outer.addWidget(warnings_title)
+        self.warnings_label = QtWidgets.QLabel("none")
+        self.warnings_label.setObjectName("results_warnings")
+        self.warnings_label.setWordWrap(True)
+        outer.addWidget(self.warnings_label)
+        outer.addStretch(1)
+        self.caution_label = QtWidgets.QLabel(CAUTION_LINE)
+        self.caution_label.setObjectName("results_caution")
+        self.caution_label.setWordWrap(True)
+        self.caution_label.setStyleSheet(CAUTION_STYLE)
+        outer.addWidget(self.caution_label)
+
+    def show_evaluation(self, design: DesignInputs, evaluation: Evaluation, system: str) -> None:
+        """Show a result, or the core's message in place of the numbers."""
+        if evaluation.result is None:
+            self.error_label.setText(f"No result: {evaluation.error}")
+            self.error_label.setVisible(True)
+            self.table.setVisible(False)
+            self.warnings_label.setText("—")
+            return
+        self.error_label.setVisible(False)
+        self.table.setVisible(True)
+        texts = result_texts(design, evaluation, system)
+        ranged = evaluation.result.speeds_rpm[1] > evaluation.result.speeds_rpm[0]
+        for key, label in self.value_labels.items():
+            visible = key in texts and (key != "worst" or ranged)
+            label.setVisible(visible)
+            self.row_labels[key].setVisible(visible)
+            if visible and label.text() != texts[key]:
+                label.setText(texts[key])
+        self.row_labels["damping"].setText(
+            "Damping coefficient per mount" + (" (equivalent viscous)" if evaluation.result.damping_is_equivalent
+                                               else ""))
+        warnings = evaluation.result.warnings
+        self.warnings_label.setText("\n".join(f"• {w}" for w in warnings) if warnings else "none")

@@ -210,13 +210,14 @@ class PassageResult:
     time_s, speed_rpm, displacement_m, transmitted_force_n : ndarray
         Time history: time (s), instantaneous speed (r/min), machine displacement (m),
         force into the floor k x + c x' (N).
-    envelope_speed_rpm : ndarray
-        Instantaneous speed at the middle of each envelope window, r/min.
-    displacement_envelope_m, force_envelope_n : ndarray
-        Largest |x| (m) and |k x + c x'| (N) in each window; a window lasts one period of
-        the slower of the running speed and the natural frequency.
-    steady_displacement_envelope_m, steady_force_envelope_n : ndarray
-        Steady-state amplitudes at the envelope speeds (constant-speed response), m and N.
+    displacement_envelope_speed_rpm, displacement_envelope_m : ndarray
+        Upper envelope of |x|: the largest |x| (m) within each window one period of the
+        slower of running speed and natural frequency long (windows start every eighth of
+        that), at the instantaneous speed (r/min) where it occurs; distinct peaks in time order.
+    steady_displacement_envelope_m : ndarray
+        Steady-state displacement amplitude at constant speed, at the same speeds, m.
+    force_envelope_speed_rpm, force_envelope_n, steady_force_envelope_n : ndarray
+        The same for the force into the floor |k x + c x'| (N).
     peak_displacement_m, peak_force_n : float
         Largest |x| and |force| during the passage.
     peak_displacement_speed_rpm, peak_force_speed_rpm : float
@@ -235,10 +236,11 @@ class PassageResult:
     speed_rpm: np.ndarray
     displacement_m: np.ndarray
     transmitted_force_n: np.ndarray
-    envelope_speed_rpm: np.ndarray
+    displacement_envelope_speed_rpm: np.ndarray
     displacement_envelope_m: np.ndarray
-    force_envelope_n: np.ndarray
     steady_displacement_envelope_m: np.ndarray
+    force_envelope_speed_rpm: np.ndarray
+    force_envelope_n: np.ndarray
     steady_force_envelope_n: np.ndarray
     peak_displacement_m: float
     peak_force_n: float
@@ -259,12 +261,35 @@ def _steady_amplitudes(unbalance_kg_m, mass_kg, omega_n, zeta, omega):
     return displacement, force
 
 
-def _window_starts(omega, omega_n, step_s):
-    """First sample of each envelope window (one period of min(Omega, omega_n))."""
+#: Envelope windows overlap: a new window starts every 1/ENVELOPE_HOPS of a window length.
+ENVELOPE_HOPS = 8
+
+
+def _envelope_pieces(omega, omega_n, step_s):
+    """First sample of each envelope piece, 1/ENVELOPE_HOPS of a period of min(Omega, omega_n)."""
     clock_rate = np.clip(omega, 0.02 * omega_n, omega_n)
     clock = np.concatenate(([0.0], np.cumsum(0.5 * (clock_rate[1:] + clock_rate[:-1]) * step_s)))
-    window = np.floor(clock / (2.0 * np.pi)).astype(np.int64)
-    return np.concatenate(([0], np.flatnonzero(np.diff(window)) + 1))
+    piece = np.floor(clock * ENVELOPE_HOPS / (2.0 * np.pi)).astype(np.int64)
+    return np.concatenate(([0], np.flatnonzero(np.diff(piece)) + 1))
+
+
+def _dominant_peaks(values, starts):
+    """Samples where |values| is largest within a window of ENVELOPE_HOPS pieces around them.
+
+    Each window (one period of the slower motion) contributes the sample of its maximum;
+    the distinct samples, in time order, trace the upper envelope without the dips of beats.
+    """
+    magnitude = np.abs(values)
+    lengths = np.diff(np.append(starts, magnitude.size))
+    piece_max = np.maximum.reduceat(magnitude, starts)
+    piece_of_sample = np.repeat(np.arange(starts.size), lengths)
+    hits = np.flatnonzero(magnitude == piece_max[piece_of_sample])
+    _, first = np.unique(piece_of_sample[hits], return_index=True)
+    piece_peak_sample = hits[first]                              # sample of each piece's maximum
+    hops = min(ENVELOPE_HOPS, starts.size)
+    best_piece = np.lib.stride_tricks.sliding_window_view(piece_max, hops).argmax(axis=1)
+    best_piece += np.arange(best_piece.size)
+    return piece_peak_sample[np.unique(best_piece)]
 
 
 def simulate_runup(mass_kg: float, stiffness_n_per_m: float, damping_n_s_per_m: float,
@@ -338,13 +363,11 @@ def simulate_runup(mass_kg: float, stiffness_n_per_m: float, damping_n_s_per_m: 
     transmitted = stiffness * displacement + damping * response.velocity_m_per_s
     speed = rad_s_to_rpm(omega)
 
-    starts = _window_starts(omega, omega_n, duration / (count - 1))
-    ends = np.append(starts[1:], count) - 1
-    envelope_speed = rad_s_to_rpm(0.5 * (omega[starts] + omega[ends]))
-    displacement_envelope = np.maximum.reduceat(np.abs(displacement), starts)
-    force_envelope = np.maximum.reduceat(np.abs(transmitted), starts)
-    steady_x_envelope, steady_f_envelope = _steady_amplitudes(
-        unbalance, mass, omega_n, zeta, rpm_to_rad_s(envelope_speed))
+    pieces = _envelope_pieces(omega, omega_n, duration / (count - 1))
+    x_peaks = _dominant_peaks(displacement, pieces)
+    f_peaks = _dominant_peaks(transmitted, pieces)
+    steady_x_envelope, _ = _steady_amplitudes(unbalance, mass, omega_n, zeta, omega[x_peaks])
+    _, steady_f_envelope = _steady_amplitudes(unbalance, mass, omega_n, zeta, omega[f_peaks])
     steady_x, steady_f = _steady_amplitudes(unbalance, mass, omega_n, zeta, omega_op)
 
     i_x = int(np.argmax(np.abs(displacement)))
@@ -360,10 +383,11 @@ def simulate_runup(mass_kg: float, stiffness_n_per_m: float, damping_n_s_per_m: 
         speed_rpm=speed,
         displacement_m=displacement,
         transmitted_force_n=transmitted,
-        envelope_speed_rpm=envelope_speed,
-        displacement_envelope_m=displacement_envelope,
-        force_envelope_n=force_envelope,
+        displacement_envelope_speed_rpm=speed[x_peaks],
+        displacement_envelope_m=np.abs(displacement[x_peaks]),
         steady_displacement_envelope_m=steady_x_envelope,
+        force_envelope_speed_rpm=speed[f_peaks],
+        force_envelope_n=np.abs(transmitted[f_peaks]),
         steady_force_envelope_n=steady_f_envelope,
         peak_displacement_m=peak_x,
         peak_force_n=peak_f,

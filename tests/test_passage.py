@@ -127,6 +127,11 @@ def test_steady_values_at_operating_speed():
     # At the end of the run-up the response settles to the steady amplitude (last envelope window).
     assert result.displacement_envelope_m[-1] == pytest.approx(result.steady_displacement_m, rel=0.1)
     assert result.speed_rpm[0] == 0.0 and result.speed_rpm[-1] == pytest.approx(1500.0)
+    # The envelope is made of response samples in time order and holds the overall peak.
+    assert np.all(np.diff(result.displacement_envelope_speed_rpm) > 0.0)
+    assert result.displacement_envelope_m.max() == result.peak_displacement_m
+    assert result.force_envelope_n.max() == result.peak_force_n
+    assert np.all(np.isin(result.displacement_envelope_m, np.abs(result.displacement_m)))
 
 
 def test_coast_down_starts_in_steady_state():

@@ -22,7 +22,7 @@ from PySide6 import QtCore, QtWidgets
 import numpy as np
 import pyqtgraph as pg
 
-from app.style import PALETTE
+from app.style import CAUTION_STYLE, PALETTE
 from core.cautions import CAUTION_LINE
 from core.design_map import DesignMap
 
@@ -115,7 +115,7 @@ class DesignMapView(QtWidgets.QWidget):
 
         self.caution_label = QtWidgets.QLabel(CAUTION_LINE)
         self.caution_label.setWordWrap(True)
-        self.caution_label.setStyleSheet(f"color: {PALETTE['caution_text']};")
+        self.caution_label.setStyleSheet(CAUTION_STYLE)
         layout = QtWidgets.QVBoxLayout(self)
         layout.addWidget(self.plot_widget, 1)
         layout.addWidget(self.caution_label)

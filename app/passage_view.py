@@ -13,7 +13,7 @@ from PySide6 import QtCore, QtWidgets
 
 import pyqtgraph as pg
 
-from app.style import LINE_WIDTH, MARKER_SIZE, PALETTE
+from app.style import CAUTION_STYLE, LINE_WIDTH, MARKER_SIZE, PALETTE
 from core.cautions import CAUTION_LINE
 from core.passage import PassageResult
 
@@ -47,7 +47,7 @@ class PassageView(QtWidgets.QWidget):
         self.summary_label.setWordWrap(True)
         self.caution_label = QtWidgets.QLabel(CAUTION_LINE)
         self.caution_label.setWordWrap(True)
-        self.caution_label.setStyleSheet(f"color: {PALETTE['caution_text']};")
+        self.caution_label.setStyleSheet(CAUTION_STYLE)
         layout = QtWidgets.QVBoxLayout(self)
         layout.addWidget(self.plots, 1)
         layout.addWidget(self.summary_label)

@@ -338,6 +338,9 @@ def simulate_runup(mass_kg: float, stiffness_n_per_m: float, damping_n_s_per_m: 
 
     omega_n = np.sqrt(stiffness / mass)
     zeta = damping / (2.0 * np.sqrt(stiffness * mass))
+    if zeta == 0.0 and abs(omega_op / omega_n - 1.0) < 1e-6:
+        raise InputError("damping_n_s_per_m", "must be > 0 N·s/m when the operating speed equals the "
+                         "natural frequency (the steady amplitude would be unbounded)", damping_n_s_per_m)
     fastest = max(omega_op, omega_n)
     count = int(np.ceil(duration * fastest * samples_per_period / (2.0 * np.pi))) + 1
     if count > MAX_SAMPLES:

@@ -224,6 +224,13 @@ def test_simulate_runup_names_bad_field(field, value):
     assert field in str(caught.value)
 
 
+def test_undamped_resonant_operation_is_refused_with_field():
+    # Undamped at r = 1 the steady amplitude is unbounded (REFERENCES §1, receptance at r = 1, zeta = 0).
+    with pytest.raises(InputError) as caught:
+        simulate_runup(**{**GOOD, "damping_n_s_per_m": 0.0, "stiffness_n_per_m": 100.0 * (50 * np.pi) ** 2})
+    assert caught.value.field == "damping_n_s_per_m"
+
+
 def test_too_long_run_is_refused_with_field():
     with pytest.raises(InputError) as caught:
         simulate_runup(**{**GOOD, "ramp_s": 1e7})

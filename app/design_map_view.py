@@ -153,11 +153,11 @@ class DesignMapView(QtWidgets.QWidget):
             self.contours[key].setData(values if shown else None, level if shown else 0.0)
             self.contours[key].setVisible(shown)
 
-        if design_point is None:
-            self.marker.setData([], [])
-        else:
+        if design_point is not None and all(math.isfinite(v) and v > 0.0 for v in design_point):
             fn_hz, zeta = design_point
             self.marker.setData([math.log10(fn_hz)], [math.log10(zeta)])
+        else:                                   # no design point, or none a log axis can show
+            self.marker.setData([], [])
         self.plot.setTitle(f"Operating speed {map_result.speed_rpm:.5g} r/min, run-up {map_result.ramp_s:.3g} s",
                            color=PALETTE["foreground"])
         self.plot.getViewBox().setRange(rect=rect, padding=0.0)

@@ -116,8 +116,11 @@ def test_deflection_contour_at_rule_frequency(map_view, limited_map):
 
 def test_contours_hidden_without_limits(map_view):
     map_view.show_map(design_map(1450.0, frequency_points=40, damping_points=30), (5.0, 0.1))
+    assert map_view.marker.getData()[0].size == 1
     assert not any(contour.isVisible() for contour in map_view.contours.values())
     assert not map_view.wash.image[..., 3].any()
+    map_view.show_map(design_map(1450.0, frequency_points=40, damping_points=30), (0.0, 0.1))
+    assert map_view.marker.getData()[0].size == 0          # a log axis cannot show zero: no marker
 
 
 def test_click_emits_point(map_view, qtbot, limited_map):

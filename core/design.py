@@ -20,7 +20,7 @@ from core.transmissibility import MAX_DAMPING, MAX_DESIGN_RATIO, Damping
 MAX_DUTY_SPEEDS = 24
 
 LoadLayout = Literal["equal", "per_mount", "cg_offset"]
-Tuning = Literal["isolation", "frequency_ratio"]
+Tuning = Literal["isolation", "frequency_ratio", "natural_frequency"]
 
 #: Allowed ranges, shared by validation, the command line and the window.
 LIMITS = {
@@ -31,6 +31,7 @@ LIMITS = {
     "damping.dynamic_stiffness_ratio": (1.0, 10.0),
     "tuning.frequency_ratio": (0.05, MAX_DESIGN_RATIO),
     "tuning.isolation_percent": (0.1, 99.99),
+    "tuning.natural_frequency_hz": (0.05, 500.0),
     "limits.max_static_deflection_mm": (0.01, 1000.0),
     "limits.max_load_spread_percent": (0.0, 1000.0),
     "limits.max_passage_amplification": (1.0, 1000.0),
@@ -98,13 +99,16 @@ class DesignInputs:
     damping : Damping
     dynamic_stiffness_ratio : float
         Dynamic over static stiffness of the mount material (1 for steel springs).
-    tuning : {"isolation", "frequency_ratio"}
+    tuning : {"isolation", "frequency_ratio", "natural_frequency"}
         Whether the natural frequency follows from a target isolation at the
-        lowest speed or from a chosen frequency ratio.
+        lowest speed, from a chosen frequency ratio, or is chosen directly
+        (sensitive equipment on a moving floor).
     isolation_percent : float
         Target isolation efficiency at the lowest speed (%); also drawn as a line.
     frequency_ratio : float
         Chosen omega / omega_n at the lowest speed.
+    natural_frequency_hz : float
+        Chosen natural frequency on the mounts (Hz) for ``tuning="natural_frequency"``.
     excitation : Excitation
     limits : DesignLimits
     """
@@ -123,6 +127,7 @@ class DesignInputs:
     tuning: Tuning = "isolation"
     isolation_percent: float = 90.0
     frequency_ratio: float = 3.0
+    natural_frequency_hz: float = 5.0
     excitation: Excitation = field(default_factory=Excitation)
     limits: DesignLimits = field(default_factory=DesignLimits)
 
@@ -149,10 +154,12 @@ class DesignInputs:
         if self.load_layout == "cg_offset":
             self._check_cg_layout(count)
         check_range("damping.dynamic_stiffness_ratio", self.dynamic_stiffness_ratio)
-        if self.tuning not in ("isolation", "frequency_ratio"):
-            raise InputError("tuning.method", "must be isolation or frequency_ratio", self.tuning)
+        if self.tuning not in ("isolation", "frequency_ratio", "natural_frequency"):
+            raise InputError("tuning.method", "must be isolation, frequency_ratio or natural_frequency",
+                             self.tuning)
         check_range("tuning.isolation_percent", self.isolation_percent, "%")
         check_range("tuning.frequency_ratio", self.frequency_ratio)
+        check_range("tuning.natural_frequency_hz", self.natural_frequency_hz, "Hz")
         self.excitation.validate()
         check_range("limits.max_static_deflection_mm", self.limits.max_static_deflection_mm, "mm")
         check_range("limits.max_load_spread_percent", self.limits.max_load_spread_percent, "%")
@@ -214,7 +221,8 @@ class DesignInputs:
             "damping": {"model": self.damping.model, "value": self.damping.value,
                         "dynamic_stiffness_ratio": self.dynamic_stiffness_ratio},
             "tuning": {"method": self.tuning, "isolation_percent": self.isolation_percent,
-                       "frequency_ratio": self.frequency_ratio},
+                       "frequency_ratio": self.frequency_ratio,
+                       "natural_frequency_hz": self.natural_frequency_hz},
             "excitation": asdict(self.excitation),
             "limits": asdict(self.limits),
         }
@@ -252,6 +260,7 @@ class DesignInputs:
             tuning=tuning.get("method", kind=str),
             isolation_percent=tuning.get("isolation_percent", default=90.0),
             frequency_ratio=tuning.get("frequency_ratio", default=3.0),
+            natural_frequency_hz=tuning.get("natural_frequency_hz", default=5.0),
             excitation=Excitation(
                 kind=excitation.get("kind", kind=str, default="none"),
                 force_n=excitation.get("force_n", default=defaults.force_n),

@@ -15,6 +15,10 @@ def evaluate_project(project: Project) -> dict:
 
     Raises InputError or TargetUnreachable for a design that cannot be evaluated.
     """
-    values = {"name": project.name}
-    values.update(synthesize(project.design).to_json_dict())
+    result = synthesize(project.design)
+    values = {"name": project.name, "kind": project.kind}
+    values.update(result.to_json_dict())
+    studies = project.studies.evaluate(project.design, result)
+    values["warnings"] = values["warnings"] + studies.pop("study_warnings")
+    values.update(studies)
     return values

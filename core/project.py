@@ -2,11 +2,17 @@
 
 A project file is one JSON object::
 
-    {"format": "mountsmith-project", "schema_version": 1,
-     "name": "...", "notes": "...", "design": {...}, "view": {...}}
+    {"format": "mountsmith-project", "schema_version": 2, "kind": "machine",
+     "name": "...", "notes": "...", "design": {...}, "studies": {...}, "view": {...}}
 
-``design`` is :meth:`core.design.DesignInputs.to_dict`; ``view`` holds how
-the window shows the design (display units, plot options). Values are SI.
+``kind`` is ``"machine"`` (a running machine excites the floor) or
+``"equipment"`` (the floor moves, sensitive equipment must stay still).
+``design`` is :meth:`core.design.DesignInputs.to_dict`; ``studies`` holds the
+optional studies of :mod:`core.studies`; ``view`` holds how the window shows
+the design (display units, plot options). Values are SI.
+
+Schema history: 1 — design and view; 2 — adds ``kind``, ``studies`` and the
+design's duty speeds and natural-frequency tuning (migration fills defaults).
 
 Loading never executes anything from the file, refuses files over
 :data:`MAX_FILE_BYTES`, and reports file, field and reason in a
@@ -20,6 +26,7 @@ from __future__ import annotations
 import json
 import math
 import os
+import stat
 import tempfile
 from dataclasses import dataclass, field, replace
 from pathlib import Path
@@ -27,15 +34,17 @@ from typing import Any, Callable
 
 from core.design import DesignInputs
 from core.errors import InputError, ProjectFileError
+from core.studies import Studies
 
 FORMAT_NAME = "mountsmith-project"
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 MAX_FILE_BYTES = 5 * 1024 * 1024
 FILE_SUFFIX = ".msproj.json"
 
 UNIT_SYSTEMS = ("SI", "US")
 MAGNITUDE_SCALES = ("ratio", "db")
 X_AXES = ("ratio", "hz", "rpm")
+PROJECT_KINDS = ("machine", "equipment")
 
 
 @dataclass(frozen=True)
@@ -94,17 +103,20 @@ class ViewSettings:
 
 @dataclass(frozen=True)
 class Project:
-    """A saved design: name, notes, inputs and view settings."""
+    """A saved design: kind, name, notes, inputs, studies and view settings."""
 
     name: str = "Untitled design"
     notes: str = ""
     design: DesignInputs = field(default_factory=DesignInputs)
     view: ViewSettings = field(default_factory=ViewSettings)
+    kind: str = "machine"
+    studies: Studies = field(default_factory=Studies)
 
     def to_dict(self) -> dict:
         """The whole file as JSON types."""
-        return {"format": FORMAT_NAME, "schema_version": SCHEMA_VERSION, "name": self.name,
-                "notes": self.notes, "design": self.design.to_dict(), "view": self.view.to_dict()}
+        return {"format": FORMAT_NAME, "schema_version": SCHEMA_VERSION, "kind": self.kind, "name": self.name,
+                "notes": self.notes, "design": self.design.to_dict(), "studies": self.studies.to_dict(),
+                "view": self.view.to_dict()}
 
     @classmethod
     def from_dict(cls, data: Any) -> "Project":
@@ -118,15 +130,32 @@ class Project:
                 raise InputError(key, "must be text of at most 100000 characters", type(value).__name__)
         if "design" not in data:
             raise InputError("design", "is missing")
+        kind = data.get("kind", "machine")
+        if kind not in PROJECT_KINDS:
+            raise InputError("kind", "must be one of " + ", ".join(PROJECT_KINDS), kind)
         return cls(name=name, notes=notes, design=DesignInputs.from_dict(data["design"]),
-                   view=ViewSettings.from_dict(data.get("view", {})))
+                   view=ViewSettings.from_dict(data.get("view", {})), kind=kind,
+                   studies=Studies.from_dict(data.get("studies", {})))
 
     def with_design(self, design: DesignInputs) -> "Project":
         return replace(self, design=design)
 
+    def with_studies(self, studies: Studies) -> "Project":
+        return replace(self, studies=studies)
+
+
+def _version_1_to_2(data: dict) -> dict:
+    """Schema 2 adds the project kind, the studies and the design's duty speeds."""
+    data.setdefault("kind", "machine")
+    data.setdefault("studies", {})
+    design = data.get("design")
+    if isinstance(design, dict) and isinstance(design.get("machine"), dict):
+        design["machine"].setdefault("duty_speeds_rpm", [])
+    return data
+
 
 #: Migrations: MIGRATIONS[v] turns a version-v object into a version-(v+1) object.
-MIGRATIONS: dict[int, Callable[[dict], dict]] = {}
+MIGRATIONS: dict[int, Callable[[dict], dict]] = {1: _version_1_to_2}
 
 
 def migrate(data: dict) -> dict:
@@ -155,10 +184,20 @@ def _refuse_constant(name: str):
     raise ValueError(f"{name} is not a number JSON allows")
 
 
+def _parse_int(text: str):
+    """A JSON integer; one beyond the float range becomes ±inf, so validation names its field."""
+    value = int(text)
+    try:
+        float(value)
+    except OverflowError:
+        return math.inf if value > 0 else -math.inf
+    return value
+
+
 def parse_project(text: str, path: str = "(text)") -> Project:
     """Parse and validate project JSON text; raise ProjectFileError naming the field."""
     try:
-        data = json.loads(text, parse_constant=_refuse_constant)
+        data = json.loads(text, parse_constant=_refuse_constant, parse_int=_parse_int)
     except RecursionError:
         raise ProjectFileError(path, "is nested too deeply to be a project file") from None
     except ValueError as error:
@@ -178,7 +217,11 @@ def load_project(path: str | os.PathLike) -> Project:
     """Read a project file; never changes it. Raise ProjectFileError on any problem."""
     path = Path(path)
     try:
-        size = path.stat().st_size
+        status = path.stat()
+        if not stat.S_ISREG(status.st_mode) and not stat.S_ISDIR(status.st_mode):
+            # A pipe or device could block the read forever or never end.
+            raise ProjectFileError(str(path), "is not a regular file (a pipe, device or socket)")
+        size = status.st_size
         if size > MAX_FILE_BYTES:
             raise ProjectFileError(str(path), f"is {size / 1e6:.1f} MB, more than the "
                                    f"{MAX_FILE_BYTES / 1e6:.0f} MB a project file may be")

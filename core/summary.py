@@ -30,7 +30,8 @@ def summary_rows(values: dict) -> list[tuple[str, str]]:
         ("isolation at speed", f"{values['isolation_percent']:.4g} % ({values['isolation_db']:.4g} dB reduction)"),
         ("phase at speed", f"{values['phase_deg']:.4g}° (lag negative)"),
         ("worst over speed range", f"{values['worst_transmissibility']:.4g} at {values['worst_speed_rpm']:.6g} r/min"),
-        ("resonance peak", f"{values['peak_transmissibility']:.4g} at ω/ωn = {values['peak_frequency_ratio']:.4g}"),
+        ("resonance peak", "unbounded (no damping)" if values["peak_transmissibility"] is None else
+         f"{values['peak_transmissibility']:.4g} at ω/ωn = {values['peak_frequency_ratio']:.4g}"),
         ("static deflection", f"{values['static_deflection_mm']:.4g} mm"),
         ("load per mount", _list(values["load_per_mount_n"], digits=5) + " N"),
         ("stiffness per mount (dynamic)", _list(values["stiffness_per_mount_n_per_m"], 1e-3) + " N/mm"),

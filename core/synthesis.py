@@ -14,6 +14,7 @@ from dataclasses import asdict, dataclass, replace
 import numpy as np
 
 from core.design import DesignInputs
+from core.errors import InputError
 from core.excitation import rad_s_to_rpm, rpm_to_rad_s
 from core.transmissibility import (
     CROSSOVER_RATIO, force_transmissibility, isolation_db, isolation_percent,
@@ -106,7 +107,9 @@ class DesignResult:
             "damping_per_mount_n_s_per_m": list(self.damping_per_mount_n_s_per_m),
             "damping_is_equivalent_viscous": self.damping_is_equivalent,
             "load_per_mount_n": list(self.load_per_mount_n),
-            "peak_transmissibility": self.peak_transmissibility,
+            # JSON has no infinity: an undamped (unbounded) peak is null.
+            "peak_transmissibility": (self.peak_transmissibility if np.isfinite(self.peak_transmissibility)
+                                      else None),
             "peak_frequency_ratio": self.peak_frequency_ratio,
             "worst_transmissibility": self.worst_transmissibility,
             "worst_speed_rpm": self.worst_speed_rpm,
@@ -161,9 +164,11 @@ def mount_loads(design: DesignInputs) -> np.ndarray:
 
 
 def design_frequency_ratio(design: DesignInputs) -> float:
-    """Frequency ratio at the lowest speed: chosen, or needed for the target isolation."""
+    """Frequency ratio at the lowest speed: chosen, from a chosen natural frequency, or needed for the target."""
     if design.tuning == "frequency_ratio":
         return float(design.frequency_ratio)
+    if design.tuning == "natural_frequency":
+        return float(rpm_to_rad_s(design.speed_rpm)) / (2.0 * np.pi * design.natural_frequency_hz)
     target = 1.0 - design.isolation_percent / 100.0
     return required_ratio(target, design.damping, field="tuning.isolation_percent")
 
@@ -217,10 +222,15 @@ def synthesize(design: DesignInputs) -> DesignResult:
     loads = mount_loads(design)
     shares = loads / loads.sum()
 
-    response = complex(force_transmissibility(ratio, design.damping))
-    magnitude = abs(response)
-    peak = transmissibility_peak(design.damping)
-    worst, worst_speed = _worst_over_range(design, omega_n, ratio, ratio_high)
+    with np.errstate(divide="ignore", invalid="ignore"):  # undamped at resonance: refused just below
+        response = complex(force_transmissibility(ratio, design.damping))
+        magnitude = abs(response)
+        peak = transmissibility_peak(design.damping)
+        worst, worst_speed = _worst_over_range(design, omega_n, ratio, ratio_high)
+    if not (np.isfinite(worst) and np.isfinite(magnitude)):
+        field = "damping.damping_ratio" if design.damping.model == "viscous" else "damping.loss_factor"
+        raise InputError(field, "must be > 0 when a running speed is at resonance (frequency ratio 1): "
+                         "the undamped response there is unbounded", design.damping.value)
     static_deflection = design.weight_n / static_stiffness
     duty_points = _duty_points(design, omega_n)
 
@@ -296,8 +306,10 @@ def _with_warnings(result: DesignResult, design: DesignInputs, loads: np.ndarray
             "more than a single steel spring usually gives (common practice): consider springs in series "
             "or a stiffer choice.")
     if result.peak_transmissibility > design.limits.max_passage_amplification:
+        peak = (f"{result.peak_transmissibility:.4g}×" if np.isfinite(result.peak_transmissibility)
+                else "unbounded (no damping)")
         warnings.append(
-            f"Resonance peak of {result.peak_transmissibility:.4g}× is passed at every start and stop "
+            f"Resonance peak of {peak} is passed at every start and stop "
             f"(limit {design.limits.max_passage_amplification:g}×): add damping or snubbers.")
     mean = float(loads.mean())
     spread = float((loads.max() - loads.min()) / mean * 100.0)

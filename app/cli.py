@@ -4,7 +4,8 @@
 
 * ``design``   — synthesize mount values from command-line inputs;
 * ``evaluate`` — evaluate a project file;
-* ``plot``     — export the plots of a project as PNG, no display needed.
+* ``plot``     — export the plots of a project as PNG, no display needed;
+* ``report``   — write the design-review sheet of a project as PDF (and PNG pages).
 
 Bad input exits with status 2 and one line naming the field and its allowed
 range. Qt is imported only by the commands that draw.
@@ -26,7 +27,7 @@ from core.project import Project, load_project, save_project
 from core.summary import summary_rows
 from core.transmissibility import Damping
 
-SUBCOMMANDS = ("design", "evaluate", "plot")
+SUBCOMMANDS = ("design", "evaluate", "plot", "report")
 
 #: Command-line flag for each design field, so messages name what the user typed.
 FLAG_OF_FIELD = {
@@ -96,6 +97,11 @@ def _build_parser() -> argparse.ArgumentParser:
     plot.add_argument("--out", required=True, help="PNG file to write")
     plot.add_argument("--width", type=int, default=1800, help="pixels (default 1800)")
     plot.add_argument("--height", type=int, default=1200, help="pixels (default 1200)")
+
+    report = sub.add_parser("report", help="write the design-review sheet as PDF (no display needed)")
+    report.add_argument("file")
+    report.add_argument("--out", required=True, help="PDF file to write")
+    report.add_argument("--png", action="store_true", help="also write a PNG of each page beside the PDF")
     return parser
 
 
@@ -163,6 +169,27 @@ def _flag_message(error: InputError) -> str:
     return f"{flag}: {error.reason}{shown}"
 
 
+def _display_available() -> bool:
+    """Whether a window can be shown: a display on Linux, always elsewhere, or a chosen Qt platform."""
+    import os
+    if not sys.platform.startswith("linux") or os.environ.get("QT_QPA_PLATFORM"):
+        return True
+    return bool(os.environ.get("DISPLAY") or os.environ.get("WAYLAND_DISPLAY"))
+
+
+def _no_display(path: str | None) -> int:
+    """Without a display, say so and print the evaluation of the project instead of failing."""
+    print("mountsmith: no display to open the window on (DISPLAY is not set); printing the evaluation "
+          "instead. Use 'mountsmith plot FILE --out PNG' for the plots.", file=sys.stderr)
+    if path is None:
+        return 0
+    try:
+        _print_values(evaluate_project(load_project(path)), as_json=False)
+    except MountsmithError as error:
+        return _fail(f"{path}: {error}" if not isinstance(error, ProjectFileError) else str(error))
+    return 0
+
+
 def main(argv: list[str] | None = None) -> int:
     """Entry point of the ``mountsmith`` command; returns the exit status."""
     argv = list(sys.argv[1:] if argv is None else argv)
@@ -171,6 +198,8 @@ def main(argv: list[str] | None = None) -> int:
             return _fail(f"expected at most one project file, got {len(argv)} arguments")
         if argv and not Path(argv[0]).is_file():
             return _fail(f"{argv[0]}: no such file")
+        if not _display_available():
+            return _no_display(argv[0] if argv else None)
         from app.main_window import run
         return run(argv[0] if argv else None)
     args = _build_parser().parse_args(argv)
@@ -189,6 +218,9 @@ def main(argv: list[str] | None = None) -> int:
         if args.command == "plot":
             from app.export import plot_command
             return plot_command(args.file, args.out, args.width, args.height)
+        if args.command == "report":
+            from app.review_sheet import report_command
+            return report_command(args.file, args.out, png=args.png)
     except ProjectFileError as error:
         return _fail(str(error))
     except (InputError, MountsmithError) as error:

@@ -230,5 +230,15 @@ def main(argv: list[str] | None = None) -> int:
     return 2
 
 
+def run_command() -> int:
+    """Console entry: :func:`main`, quiet when the reader of our output goes away (``| head``)."""
+    try:
+        return main()
+    except BrokenPipeError:
+        import os
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
+
+
 if __name__ == "__main__":
-    sys.exit(main())
+    sys.exit(run_command())

@@ -133,12 +133,7 @@ class ExportFigure:
         dots_per_meter = round(dpi / 0.0254)
         image.setDotsPerMeterX(dots_per_meter)
         image.setDotsPerMeterY(dots_per_meter)
-        painter = QtGui.QPainter(image)
-        try:
-            painter.setRenderHint(QtGui.QPainter.RenderHint.Antialiasing, True)
-            self.widget.render(painter)
-        finally:
-            painter.end()
+        self.widget.render(image)
         return image
 
     def close(self) -> None:

@@ -71,6 +71,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self._magnitude_scale = None
         self._damping = None
         self._natural_frequency_hz = None
+        self._reference_key = None
         self.ci.layout.setContentsMargins(*(4 * self.scale,) * 4)
         self.ci.layout.setVerticalSpacing(6 * self.scale)
 
@@ -222,13 +223,18 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         def y_of(magnitude):
             return magnitude_on_scale(magnitude, view.magnitude_scale)
 
-        curves = curve_family(damping, view.reference_damping, self.ratio)
+        # The reference family only changes with the damping model, its values and the axes.
+        reference_key = (damping.model, view.reference_damping, x_axis, view.magnitude_scale,
+                         None if x_axis == "ratio" else natural_hz)
+        same_references = reference_key == self._reference_key
+        self._reference_key = reference_key
+        curves = curve_family(damping, () if same_references else view.reference_damping, self.ratio)
         x = x_of(self.ratio)
         design_curve = curves[0]
         self.design_magnitude.setData(x, y_of(design_curve.magnitude))
         self.design_phase.setData(x, design_curve.phase_deg)
         references = curves[1:]
-        for i in range(MAX_REFERENCE_CURVES):
+        for i in range(MAX_REFERENCE_CURVES if not same_references else 0):
             visible = i < len(references)
             for item in (self.reference_magnitude[i], self.reference_phase[i], self.reference_labels[i]):
                 item.setVisible(visible)

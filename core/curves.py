@@ -204,8 +204,8 @@ def curves_csv(curves, header_lines=()) -> str:
             if curve.ratio.shape != ratio.shape or not np.array_equal(curve.ratio, ratio):
                 raise ValueError("curves must share one frequency-ratio grid")
         for i, r in enumerate(ratio):
-            row = [f"{r:.8g}"]
+            row = [f"{r:.12g}"]
             for curve in curves:
-                row += [f"{curve.magnitude[i]:.8g}", f"{curve.phase_deg[i]:.6g}"]
+                row += [f"{curve.magnitude[i]:.10g}", f"{curve.phase_deg[i]:.8g}"]
             writer.writerow(row)
     return buffer.getvalue()

@@ -137,7 +137,7 @@ def parse_display(text: str, field: str, kind: str, system: str, integer: bool =
     low, high = LIMITS[field]
     value = float(from_display(shown, kind, system))
     # A limit typed as displayed (rounded to 6 significant digits) still counts as inside.
-    if not low * (1.0 - 1e-6) <= value <= high * (1.0 + 1e-6):
+    if not low * (1.0 - 1e-5) <= value <= high * (1.0 + 1e-5):
         raise InputError(field, reason, text.strip())
     value = min(max(value, low), high)
     return int(round(value)) if integer else value

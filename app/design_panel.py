@@ -143,13 +143,10 @@ class DesignPanel(QtWidgets.QWidget):
         self.count_row = FieldRow(self.count_spin)
         self.count_spin.valueChanged.connect(self._count_changed)
         form.addRow("Number of mounts", self.count_row)
-        self.layout_combo = QtWidgets.QComboBox()
-        self.layout_combo.setObjectName("load_layout")
-        for text, data in (("Equal load", "equal"), ("Centre-of-gravity offset", "cg_offset"),
-                           ("Load per mount", "per_mount")):
-            self.layout_combo.addItem(text, data)
+        self.layout_combo = self._combo("load_layout", (("Equal load", "equal"),
+                                                        ("Centre-of-gravity offset", "cg_offset"),
+                                                        ("Load per mount", "per_mount")), self._layout_changed)
         self.layout_row = FieldRow(self.layout_combo)
-        self.layout_combo.currentIndexChanged.connect(self._layout_changed)
         form.addRow("Load sharing", self.layout_row)
         for axis, index in (("x", 0), ("y", 1)):
             self._add_number(form, NumberBinding(
@@ -170,11 +167,9 @@ class DesignPanel(QtWidgets.QWidget):
 
         # ---- damping
         damping_box, form = self._group("Damping", outer)
-        self.damping_combo = QtWidgets.QComboBox()
-        self.damping_combo.setObjectName("damping_model")
-        self.damping_combo.addItem("Viscous (damping ratio ζ)", "viscous")
-        self.damping_combo.addItem("Elastomer (loss factor η)", "hysteretic")
-        self.damping_combo.currentIndexChanged.connect(self._damping_model_changed)
+        self.damping_combo = self._combo("damping_model", (("Viscous (damping ratio ζ)", "viscous"),
+                                                           ("Elastomer (loss factor η)", "hysteretic")),
+                                         self._damping_model_changed)
         form.addRow("Model", self.damping_combo)
         self._add_number(form, NumberBinding(
             "dynamic_ratio", "Dynamic/static stiffness", "ratio", "damping.dynamic_stiffness_ratio",
@@ -182,11 +177,9 @@ class DesignPanel(QtWidgets.QWidget):
 
         # ---- tuning
         tuning_box, form = self._group("Tuning", outer)
-        self.tuning_combo = QtWidgets.QComboBox()
-        self.tuning_combo.setObjectName("tuning")
-        self.tuning_combo.addItem("From target isolation", "isolation")
-        self.tuning_combo.addItem("From frequency ratio (slider)", "frequency_ratio")
-        self.tuning_combo.currentIndexChanged.connect(self._tuning_changed)
+        self.tuning_combo = self._combo("tuning", (("From target isolation", "isolation"),
+                                                   ("From frequency ratio (slider)", "frequency_ratio")),
+                                        self._tuning_changed)
         form.addRow("Natural frequency", self.tuning_combo)
         self._add_number(form, NumberBinding(
             "isolation", "Target isolation", "percent", "tuning.isolation_percent",
@@ -194,13 +187,11 @@ class DesignPanel(QtWidgets.QWidget):
 
         # ---- excitation
         excitation_box, form = self._group("Excitation (optional)", outer)
-        self.excitation_combo = QtWidgets.QComboBox()
-        self.excitation_combo.setObjectName("excitation_kind")
-        for text, data in (("None", "none"), ("Force amplitude", "force"), ("Unbalance", "unbalance"),
-                           ("Balance grade", "balance_grade")):
-            self.excitation_combo.addItem(text, data)
+        self.excitation_combo = self._combo("excitation_kind", (("None", "none"), ("Force amplitude", "force"),
+                                                                ("Unbalance", "unbalance"),
+                                                                ("Balance grade", "balance_grade")),
+                                            self._excitation_changed)
         self.excitation_row = FieldRow(self.excitation_combo)
-        self.excitation_combo.currentIndexChanged.connect(self._excitation_changed)
         form.addRow("Kind", self.excitation_row)
         self._add_number(form, NumberBinding(
             "force", "Force (0-peak)", "force", None, lambda d: d.excitation.force_n or None,
@@ -208,11 +199,8 @@ class DesignPanel(QtWidgets.QWidget):
         self._add_number(form, NumberBinding(
             "unbalance", "Unbalance", "unbalance", None, lambda d: d.excitation.unbalance_g_mm or None,
             lambda v: {"excitation": self._excitation(unbalance_g_mm=v)}))
-        self.grade_combo = QtWidgets.QComboBox()
-        self.grade_combo.setObjectName("balance_grade")
-        for grade in BALANCE_GRADES_MM_S:
-            self.grade_combo.addItem(f"G {grade:g}", grade)
-        self.grade_combo.currentIndexChanged.connect(self._grade_changed)
+        self.grade_combo = self._combo("balance_grade", tuple((f"G {g:g}", g) for g in BALANCE_GRADES_MM_S),
+                                       self._grade_changed)
         self.grade_label = QtWidgets.QLabel("Balance grade")
         self.grade_row = FieldRow(self.grade_combo, "mm/s")
         form.addRow(self.grade_label, self.grade_row)
@@ -232,6 +220,16 @@ class DesignPanel(QtWidgets.QWidget):
         form.setVerticalSpacing(3)
         outer.addWidget(box)
         return box, form
+
+    @staticmethod
+    def _combo(name: str, items, handler) -> QtWidgets.QComboBox:
+        """A combo box of (text, data) items calling ``handler`` on a user change."""
+        combo = QtWidgets.QComboBox()
+        combo.setObjectName(name)
+        for text, data in items:
+            combo.addItem(text, data)
+        combo.currentIndexChanged.connect(handler)
+        return combo
 
     def _add_number(self, form: QtWidgets.QFormLayout, binding: NumberBinding, label_widget=None) -> None:
         edit = QtWidgets.QLineEdit()

@@ -98,18 +98,13 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.crossover_lines = []
         self.speed_bands = []
         for plot in (self.magnitude_plot, self.phase_plot):
-            region = pg.LinearRegionItem(values=(0.0, 1.0), movable=False,
-                                         brush=pg.mkBrush(*PALETTE["isolation_fill"]),
-                                         pen=pg.mkPen(None))
-            region.setZValue(-20)
-            plot.addItem(region, ignoreBounds=True)
-            self.isolation_regions.append(region)
-            band = pg.LinearRegionItem(values=(0.0, 0.0), movable=False,
-                                       brush=pg.mkBrush(*PALETTE["operating_band"]),
-                                       pen=pg.mkPen(None))
-            band.setZValue(-15)
-            plot.addItem(band, ignoreBounds=True)
-            self.speed_bands.append(band)
+            for items, fill, depth in ((self.isolation_regions, "isolation_fill", -20),
+                                       (self.speed_bands, "operating_band", -15)):
+                region = pg.LinearRegionItem(values=(0.0, 1.0), movable=False,
+                                             brush=pg.mkBrush(*PALETTE[fill]), pen=pg.mkPen(None))
+                region.setZValue(depth)
+                plot.addItem(region, ignoreBounds=True)
+                items.append(region)
             line = pg.InfiniteLine(angle=90, movable=False,
                                    pen=self._pen("crossover", QtCore.Qt.PenStyle.DashLine))
             line.setZValue(-10)

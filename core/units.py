@@ -32,6 +32,16 @@ class Unit:
     si_per_unit: float
 
 
+#: Units shown the same in both systems.
+_SHARED = {
+    "speed": Unit("r/min", 1.0),
+    "frequency": Unit("Hz", 1.0),
+    "unbalance": Unit("g·mm", 1.0),
+    "grade": Unit("mm/s", 1.0),
+    "percent": Unit("%", 1.0),
+    "ratio": Unit("", 1.0),
+}
+
 #: Display unit of each kind of quantity, per system.
 UNITS: dict[str, dict[str, Unit]] = {
     "SI": {
@@ -41,12 +51,7 @@ UNITS: dict[str, dict[str, Unit]] = {
         "force": Unit("N", 1.0),
         "damping": Unit("N·s/m", 1.0),
         "velocity": Unit("mm/s", 1e-3),
-        "speed": Unit("r/min", 1.0),
-        "frequency": Unit("Hz", 1.0),
-        "unbalance": Unit("g·mm", 1.0),
-        "grade": Unit("mm/s", 1.0),
-        "percent": Unit("%", 1.0),
-        "ratio": Unit("", 1.0),
+        **_SHARED,
     },
     "US": {
         "mass": Unit("lb", POUND_KG),
@@ -55,12 +60,7 @@ UNITS: dict[str, dict[str, Unit]] = {
         "force": Unit("lbf", POUND_FORCE_N),
         "damping": Unit("lbf·s/in", POUND_FORCE_N / INCH_M),
         "velocity": Unit("in/s", INCH_M),
-        "speed": Unit("r/min", 1.0),
-        "frequency": Unit("Hz", 1.0),
-        "unbalance": Unit("g·mm", 1.0),
-        "grade": Unit("mm/s", 1.0),
-        "percent": Unit("%", 1.0),
-        "ratio": Unit("", 1.0),
+        **_SHARED,
     },
 }
 

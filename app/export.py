@@ -18,7 +18,7 @@ from core.cautions import CAUTION_LINE
 from core.curves import curve_family, ratio_axis, curves_csv
 from core.design_model import DesignModel
 from core.errors import InputError, MountsmithError
-from core.units import format_value
+from core.units import format_value, format_values
 
 DEFAULT_SIZE = (1800, 1200)
 SIZE_LIMITS = (200, 10000)
@@ -62,15 +62,13 @@ def title_lines(model: DesignModel, date: datetime.date | None = None) -> list[s
     speed = format_value(low, "speed", system) if high <= low else \
         f"{low:.5g} to {format_value(high, 'speed', system)}"
     ratio = f"{result.frequency_ratio:.4g}" + (f" to {result.frequency_ratio_max:.4g}" if high > low else "")
-    per_mount = result.stiffness_per_mount_n_per_m
-    stiffness = format_value(per_mount[0], "stiffness", system) if max(per_mount) - min(per_mount) <= \
-        1e-9 * max(per_mount) else ", ".join(format_value(k, "stiffness", system, 3) for k in per_mount)
+    stiffness = format_values(result.stiffness_per_mount_n_per_m, "stiffness", system)
     lines.append(f"Operating point r = {ratio}, {symbol} = {damping.value:.4g}; "
                  f"fn = {format_value(result.natural_frequency_hz, 'frequency', system)} "
                  f"({format_value(result.natural_frequency_rpm, 'speed', system)}); speed {speed}")
     lines.append(f"At speed: transmissibility {result.transmissibility:.4g}, isolation "
                  f"{result.isolation_percent:.4g} % ({result.isolation_db:.3g} dB); "
-                 f"stiffness per mount {stiffness} ({design.mount_count} mounts)")
+                 f"stiffness per mount {stiffness}")
     return lines
 
 

@@ -30,6 +30,7 @@ from core.errors import MountsmithError  # noqa: E402
 from core.project import FILE_SUFFIX, Project, ViewSettings  # noqa: E402
 from core.units import SYSTEM_NAMES, UNIT_SYSTEMS  # noqa: E402
 
+READOUT_HINT = "Point at the plots to read r, |T| and phase"
 PROJECT_FILTER = f"Mountsmith projects (*{FILE_SUFFIX} *.json);;All files (*)"
 
 #: Menu actions as data: name, menu, text, shortcut.
@@ -100,6 +101,7 @@ class MainWindow(QtWidgets.QMainWindow):
         scroll.setWidgetResizable(True)
         scroll.setWidget(self.design_panel)
         scroll.setFrameShape(QtWidgets.QFrame.Shape.NoFrame)
+        scroll.setHorizontalScrollBarPolicy(QtCore.Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         left = QtWidgets.QWidget()
         left_layout = QtWidgets.QVBoxLayout(left)
         left_layout.setContentsMargins(0, 0, 0, 0)
@@ -114,11 +116,12 @@ class MainWindow(QtWidgets.QMainWindow):
         results_scroll.setWidgetResizable(True)
         results_scroll.setWidget(self.results)
         results_scroll.setFrameShape(QtWidgets.QFrame.Shape.NoFrame)
-        results_scroll.setMinimumWidth(320)
+        results_scroll.setHorizontalScrollBarPolicy(QtCore.Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        results_scroll.setMinimumWidth(370)
         self.results_dock = self.add_panel(results_scroll, "Results", QtCore.Qt.DockWidgetArea.RightDockWidgetArea)
 
         # ---- status bar: readout and caution
-        self.readout_label = QtWidgets.QLabel("")
+        self.readout_label = QtWidgets.QLabel(READOUT_HINT)
         self.readout_label.setObjectName("readout")
         self.readout_label.setMinimumWidth(360)
         self.statusBar().addWidget(self.readout_label)
@@ -255,7 +258,7 @@ class MainWindow(QtWidgets.QMainWindow):
 
     def _show_readout(self, value) -> None:
         if value is None:
-            self.readout_label.setText("")
+            self.readout_label.setText(READOUT_HINT)
             return
         self.readout_label.setText(
             f"r = {value.ratio:.4g}    |T| = {value.magnitude:.4g} ({value.magnitude_db:.3g} dB)    "

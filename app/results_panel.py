@@ -12,7 +12,7 @@ from app.style import CAUTION_STYLE, FIELD_ERROR_STYLE
 from core.cautions import CAUTION_LINE
 from core.design import DesignInputs
 from core.design_model import Evaluation
-from core.units import format_value
+from core.units import format_value, format_values
 
 #: Rows of the results panel: key, label.
 ROWS = (
@@ -23,7 +23,7 @@ ROWS = (
     ("phase", "Phase of T"),
     ("stiffness_total", "Stiffness, total (dynamic)"),
     ("stiffness_per_mount", "Stiffness per mount"),
-    ("damping", "Damping coefficient per mount"),
+    ("damping", "Damping per mount"),
     ("static_deflection", "Static deflection"),
     ("load_per_mount", "Load per mount"),
     ("peak", "Resonance peak"),
@@ -35,14 +35,6 @@ ROWS = (
 )
 
 EXCITATION_ROWS = ("excitation_force", "transmitted_force", "transmitted_per_mount", "motion")
-
-
-def _values(values, kind: str, system: str) -> str:
-    """One value if all are equal, else the list."""
-    values = tuple(values)
-    if values and max(values) - min(values) <= 1e-9 * max(abs(max(values)), 1e-300):
-        return format_value(values[0], kind, system) + (f"  (× {len(values)})" if len(values) > 1 else "")
-    return ", ".join(format_value(v, kind, system, 3) for v in values)
 
 
 def result_texts(design: DesignInputs, evaluation: Evaluation, system: str) -> dict[str, str]:
@@ -58,10 +50,10 @@ def result_texts(design: DesignInputs, evaluation: Evaluation, system: str) -> d
         "isolation": f"{result.isolation_percent:.4g} %   ({result.isolation_db:.3g} dB)",
         "phase": f"{result.phase_deg:.4g}°",
         "stiffness_total": format_value(result.stiffness_total_n_per_m, "stiffness", system),
-        "stiffness_per_mount": _values(result.stiffness_per_mount_n_per_m, "stiffness", system),
-        "damping": _values(result.damping_per_mount_n_s_per_m, "damping", system),
+        "stiffness_per_mount": format_values(result.stiffness_per_mount_n_per_m, "stiffness", system),
+        "damping": format_values(result.damping_per_mount_n_s_per_m, "damping", system),
         "static_deflection": format_value(result.static_deflection_m, "length", system),
-        "load_per_mount": _values(result.load_per_mount_n, "force", system),
+        "load_per_mount": format_values(result.load_per_mount_n, "force", system),
         "peak": ("unbounded (no damping)" if result.peak_transmissibility == float("inf") else
                  f"{result.peak_transmissibility:.4g}× at r = {result.peak_frequency_ratio:.4g}"),
         "worst": f"{result.worst_transmissibility:.4g} at {format_value(result.worst_speed_rpm, 'speed', system)}",
@@ -70,9 +62,9 @@ def result_texts(design: DesignInputs, evaluation: Evaluation, system: str) -> d
         texts.update({
             "excitation_force": format_value(result.excitation_force_n, "force", system),
             "transmitted_force": format_value(result.transmitted_force_n, "force", system),
-            "transmitted_per_mount": _values(result.transmitted_force_per_mount_n, "force", system),
-            "motion": f"{format_value(result.machine_displacement_m, 'length', system)} 0-peak, "
-                      f"{format_value(result.machine_velocity_m_s, 'velocity', system)}",
+            "transmitted_per_mount": format_values(result.transmitted_force_per_mount_n, "force", system),
+            "motion": f"{format_value(result.machine_displacement_m, 'length', system)} and "
+                      f"{format_value(result.machine_velocity_m_s, 'velocity', system)} (0-peak)",
         })
     return texts
 
@@ -100,6 +92,8 @@ class ResultsPanel(QtWidgets.QWidget):
         form = QtWidgets.QFormLayout(self.table)
         form.setContentsMargins(0, 0, 0, 0)
         form.setVerticalSpacing(4)
+        form.setRowWrapPolicy(QtWidgets.QFormLayout.RowWrapPolicy.WrapLongRows)
+        form.setFieldGrowthPolicy(QtWidgets.QFormLayout.FieldGrowthPolicy.AllNonFixedFieldsGrow)
         self.value_labels: dict[str, QtWidgets.QLabel] = {}
         self.row_labels: dict[str, QtWidgets.QLabel] = {}
         for key, text in ROWS:
@@ -144,7 +138,6 @@ class ResultsPanel(QtWidgets.QWidget):
             if visible and label.text() != texts[key]:
                 label.setText(texts[key])
         self.row_labels["damping"].setText(
-            "Damping coefficient per mount" + (" (equivalent viscous)" if evaluation.result.damping_is_equivalent
-                                               else ""))
+            "Damping per mount" + ("\n(equivalent viscous)" if evaluation.result.damping_is_equivalent else ""))
         warnings = evaluation.result.warnings
         self.warnings_label.setText("\n".join(f"• {w}" for w in warnings) if warnings else "none")

@@ -154,3 +154,16 @@ def format_value(value_si: float | None, kind: str, system: str, digits: int = 4
     shown = to_display(value_si, kind, system)
     symbol = unit_symbol(kind, system)
     return f"{shown:.{digits}g}{' ' + symbol if symbol else ''}"
+
+
+def format_values(values_si, kind: str, system: str, digits: int = 4) -> str:
+    """Several SI values as ``"2497, 2497, 2029 lbf/in"``: one unit at the end; ``"2497 lbf/in (× 4)"`` if equal."""
+    values = [float(v) for v in values_si]
+    if not values:
+        return "—"
+    symbol = unit_symbol(kind, system)
+    unit_text = f" {symbol}" if symbol else ""
+    if max(values) - min(values) <= 1e-9 * max(abs(max(values)), abs(min(values)), 1e-300):
+        return format_value(values[0], kind, system, digits) + (f"  (× {len(values)})" if len(values) > 1 else "")
+    shown = ", ".join(f"{to_display(v, kind, system):.{digits}g}" for v in values)
+    return shown + unit_text

@@ -13,7 +13,7 @@ from hypothesis import given, strategies as st
 
 from core.errors import InputError
 from core.units import (
-    UNITS, format_value, from_display, parse_display, range_reason, to_display, unit_symbol)
+    UNITS, format_value, format_values, from_display, parse_display, range_reason, to_display, unit_symbol)
 
 
 def test_exact_definitions():
@@ -78,3 +78,11 @@ def test_range_reason_and_format():
     assert format_value(math.nan, "ratio", "SI") == "—"
     with pytest.raises(InputError, match="view.units"):
         to_display(1.0, "mass", "metric")
+
+
+def test_format_values_puts_one_unit_after_a_list():
+    assert format_values([2000.0, 2000.0], "force", "SI") == "2000 N  (× 2)"
+    # 1 lbf/in = 175.126835246476 N/m exactly (from the lbf and inch definitions)
+    assert format_values([175.126835246476 * 2497, 175.126835246476 * 1600], "stiffness", "US") == \
+        "2497, 1600 lbf/in"
+    assert format_values([], "force", "SI") == "—"

@@ -251,6 +251,8 @@ class MainWindow(QtWidgets.QMainWindow):
         self._redraw_timer.stop()
         self._redraw_pending = False
         evaluation = self.model.evaluate()
+        for value in ("hz", "rpm"):  # absolute frequency needs a natural frequency
+            self.view_actions[("x_axis", value)].setEnabled(evaluation.result is not None)
         self.operating.refresh()
         self.plots.show_design(self.model.design, evaluation, self.model.view)
         self.results.show_evaluation(self.model.design, evaluation, self.model.view.units)

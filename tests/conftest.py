@@ -26,13 +26,13 @@ def demo_project_params():
 
 
 @pytest.fixture(autouse=True)
-def isolated_qsettings(tmp_path):
+def isolated_qsettings(request):
     """Point QSettings at a temporary folder, when Qt is in use (core-only runs never import Qt)."""
     if "PySide6.QtCore" not in sys.modules:
         yield None
         return
     from PySide6.QtCore import QSettings
-    folder = tmp_path / "qsettings"
+    folder = request.getfixturevalue("tmp_path") / "qsettings"
     folder.mkdir()
     QSettings.setPath(QSettings.Format.IniFormat, QSettings.Scope.UserScope, str(folder))
     yield folder

@@ -431,3 +431,28 @@ def test_safety_notes_and_caution_are_present(main_window, qtbot, monkeypatch):
     window.actions["safety"].trigger()
     assert shown and "seismic" in shown[0].lower() and "licensed" in shown[0].lower()
     assert "supplier" in window.results.caution_label.text()
+
+
+@pytest.mark.parametrize("path", demo_project_params()[:1])
+def test_run_opens_the_window_on_a_file_and_exits_cleanly(tmp_path, path):
+    """``mountsmith FILE`` calls app.main_window.run(FILE): one window on that project, exit status 0."""
+    import os
+    import subprocess
+    import sys
+    from tests.conftest import ROOT
+    script = (
+        "import sys\n"
+        "from PySide6 import QtCore, QtWidgets\n"
+        f"QtCore.QSettings.setPath(QtCore.QSettings.Format.IniFormat, QtCore.QSettings.Scope.UserScope, {str(tmp_path)!r})\n"
+        "app = QtWidgets.QApplication(['mountsmith'])  # run() uses this one\n"
+        "from app.main_window import MainWindow, run\n"
+        "def check():\n"
+        "    windows = [w for w in QtWidgets.QApplication.topLevelWidgets() if isinstance(w, MainWindow)]\n"
+        "    print('windows', len(windows), windows[0].model.name, flush=True)\n"
+        "    windows[0].close()\n"
+        "QtCore.QTimer.singleShot(300, check)\n"
+        f"sys.exit(run({str(path)!r}))\n")
+    done = subprocess.run([sys.executable, "-c", script], cwd=ROOT, capture_output=True, text=True, timeout=60,
+                          env=dict(os.environ, QT_QPA_PLATFORM="offscreen"))
+    assert done.returncode == 0, done.stderr
+    assert f"windows 1 {load_project(path).name}" in done.stdout

@@ -178,9 +178,13 @@ class DesignPanel(QtWidgets.QWidget):
         # ---- tuning
         tuning_box, form = self._group("Tuning", outer)
         self.tuning_combo = self._combo("tuning", (("From target isolation", "isolation"),
-                                                   ("From frequency ratio (slider)", "frequency_ratio")),
+                                                   ("From frequency ratio (slider)", "frequency_ratio"),
+                                                   ("Chosen directly", "natural_frequency")),
                                         self._tuning_changed)
         form.addRow("Natural frequency", self.tuning_combo)
+        self._add_number(form, NumberBinding(
+            "natural_frequency", "Natural frequency fn", "frequency", "tuning.natural_frequency_hz",
+            lambda d: d.natural_frequency_hz, lambda v: {"natural_frequency_hz": v, "tuning": "natural_frequency"}))
         self._add_number(form, NumberBinding(
             "isolation", "Target isolation", "percent", "tuning.isolation_percent",
             lambda d: d.isolation_percent, lambda v: {"isolation_percent": v}))
@@ -324,14 +328,22 @@ class DesignPanel(QtWidgets.QWidget):
         self.model.set_damping_model(self.damping_combo.currentData())
 
     def _tuning_changed(self, _index: int) -> None:
+        self._update_visibility()
         method = self.tuning_combo.currentData()
         changes = {"tuning": method}
         result = self.model.result
+        # Keep the natural frequency where it is: start from the values the previous method gave.
         if method == "frequency_ratio" and result is not None:
-            # Keep the natural frequency where it is: start from the ratio the target gave.
-            changes["frequency_ratio"] = min(max(result.frequency_ratio, LIMITS["tuning.frequency_ratio"][0]),
-                                             LIMITS["tuning.frequency_ratio"][1])
+            changes["frequency_ratio"] = self._clamp("tuning.frequency_ratio", result.frequency_ratio)
+        if method == "natural_frequency" and result is not None:
+            changes["natural_frequency_hz"] = self._clamp("tuning.natural_frequency_hz",
+                                                          result.natural_frequency_hz)
         self._apply(None, **changes)
+
+    @staticmethod
+    def _clamp(field: str, value: float) -> float:
+        low, high = LIMITS[field]
+        return min(max(value, low), high)
 
     def _excitation(self, **values):
         kind = self.excitation_combo.currentData()
@@ -410,6 +422,7 @@ class DesignPanel(QtWidgets.QWidget):
             "speed_max": self.range_check.isChecked(),
             "span_x": layout == "cg_offset", "span_y": layout == "cg_offset",
             "cg_x": layout == "cg_offset", "cg_y": layout == "cg_offset",
+            "natural_frequency": self.tuning_combo.currentData() == "natural_frequency",
             "force": kind == "force", "unbalance": kind == "unbalance", "rotor_mass": kind == "balance_grade",
         }
         for key, visible in shown.items():

@@ -16,9 +16,10 @@ event                     arguments
 ``dirty_changed``         bool
 ``undo_changed``          (can_undo, can_redo)
 ``project_replaced``      new project (after New / Open)
+``studies_changed``       new studies (:class:`core.project.Studies`)
 ========================  ==================================================
 
-Undo covers the design inputs and the name. A drag of a slider is one step:
+Undo covers the design inputs, the name and the studies. A drag of a slider is one step:
 call :meth:`begin_step` when it starts and :meth:`commit_step` when it ends;
 edits between them merge into one entry. Consecutive edits with the same
 ``merge_key`` (typing in one field) also merge.
@@ -69,6 +70,7 @@ class ModelEvents:
         self.dirty_changed = Signal()
         self.undo_changed = Signal()
         self.project_replaced = Signal()
+        self.studies_changed = Signal()
 
 
 @dataclass(frozen=True)
@@ -83,6 +85,7 @@ class Evaluation:
 class _Snapshot:
     design: DesignInputs
     name: str
+    studies: object
 
 
 class DesignModel:
@@ -203,6 +206,14 @@ class DesignModel:
         self._apply(replace(self._project, name=name))
         return True
 
+    def set_studies(self, studies, merge_key: str | None = None) -> bool:
+        """Replace the project's studies (undoable); True if anything changed."""
+        if studies == self._project.studies:
+            return False
+        self._record(merge_key)
+        self._apply(replace(self._project, studies=studies))
+        return True
+
     # ------------------------------------------------------------ view edits (not undone)
     def update_view(self, **changes) -> bool:
         """Change view settings (validated; not part of undo); True if anything changed."""
@@ -275,7 +286,7 @@ class DesignModel:
 
     # ------------------------------------------------------------ internals
     def _snapshot(self) -> _Snapshot:
-        return _Snapshot(self._project.design, self._project.name)
+        return _Snapshot(self._project.design, self._project.name, self._project.studies)
 
     def _record(self, merge_key: str | None) -> None:
         """Remember the state before an edit, unless it merges with the previous edit."""
@@ -294,7 +305,7 @@ class DesignModel:
 
     def _restore(self, snapshot: _Snapshot) -> None:
         self._merge_key = None
-        self._apply(replace(self._project, design=snapshot.design, name=snapshot.name))
+        self._apply(replace(self._project, design=snapshot.design, name=snapshot.name, studies=snapshot.studies))
         self.events.undo_changed.emit(self.can_undo, self.can_redo)
 
     def _apply(self, project: Project) -> None:
@@ -307,6 +318,8 @@ class DesignModel:
             self.events.view_changed.emit(project.view)
         if project.name != old.name:
             self.events.name_changed.emit(project.name)
+        if project.studies != old.studies:
+            self.events.studies_changed.emit(project.studies)
         self._set_dirty(project != self._clean_project)
 
     def _replace(self, project: Project, path: str | None) -> None:

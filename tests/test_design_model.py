@@ -21,7 +21,7 @@ class Recorder:
     def __init__(self, model: DesignModel):
         self.seen = []
         for name in ("design_changed", "view_changed", "name_changed", "path_changed", "dirty_changed",
-                     "undo_changed", "project_replaced"):
+                     "undo_changed", "project_replaced", "studies_changed"):
             getattr(model.events, name).connect(lambda *args, n=name: self.seen.append((n, args)))
 
     def names(self):
@@ -168,3 +168,14 @@ def test_name_is_undoable():
     assert model.undo() and model.name == "Untitled design" and not model.dirty
     with pytest.raises(InputError):
         model.set_name(None)
+
+
+def test_studies_edits_are_undoable():
+    from core.studies import PassageStudy, Studies
+    model = DesignModel()
+    events = Recorder(model)
+    studies = Studies(passage=PassageStudy())
+    assert model.set_studies(studies) and "studies_changed" in events.names() and model.dirty
+    assert not model.set_studies(studies)
+    assert model.undo() and model.project.studies == Studies() and not model.dirty
+    assert model.redo() and model.project.studies == studies

@@ -93,6 +93,11 @@ def test_window_opens_demo_project_and_shows_core_results(main_window, qtbot, pa
     first = marker_y[0] if project.view.magnitude_scale == "ratio" else 10 ** (marker_y[0] / 20.0)
     assert first == pytest.approx(t_low, rel=1e-9)
     assert window.caution_label.isVisible() and "licensed engineer" in window.caution_label.text()
+    panel = window.design_panel
+    assert panel.tuning_combo.currentData() == project.design.tuning
+    assert panel.damping_combo.currentData() == damping.model
+    assert panel.layout_combo.currentData() == project.design.load_layout
+    assert panel.excitation_combo.currentData() == project.design.excitation.kind
     for label in labels.values():
         assert "nan" not in label.text().lower()
 
@@ -456,3 +461,24 @@ def test_run_opens_the_window_on_a_file_and_exits_cleanly(tmp_path, path):
                           env=dict(os.environ, QT_QPA_PLATFORM="offscreen"))
     assert done.returncode == 0, done.stderr
     assert f"windows 1 {load_project(path).name}" in done.stdout
+
+
+def test_natural_frequency_chosen_directly(main_window, qtbot):
+    window = main_window()
+    panel = window.design_panel
+    panel.tuning_combo.setCurrentIndex(panel.tuning_combo.findData("natural_frequency"))
+    field = panel.fields["natural_frequency"]
+    assert field.row.isVisible()
+    paste_into(qtbot, field.row.editor, "4")
+    settle(qtbot, window)
+    design = window.model.design
+    assert design.tuning == "natural_frequency" and design.natural_frequency_hz == 4.0
+    ratio = design.speed_rpm / 60.0 / 4.0  # r = ω/ωn
+    assert window.results.value_labels["frequency_ratio"].text().startswith(f"{ratio:.4g}")
+    assert window.operating.ratio_spin.value() == pytest.approx(ratio, abs=5e-4)
+    paste_into(qtbot, field.row.editor, "600")
+    assert "from 0.05 to 500 Hz" in field.row.error
+    assert window.model.design.natural_frequency_hz == 4.0
+    window.operating.ratio_slider.setValue(200)  # the slider takes over the tuning
+    assert window.model.design.tuning == "frequency_ratio"
+    assert panel.tuning_combo.currentData() == "frequency_ratio"

@@ -301,12 +301,12 @@ def _floor_blocks(values: dict) -> list[Block]:
                      f"{_g(values['max_natural_frequency_static_deflection_mm'])} mm)"))
     if values.get("criterion_note"):
         rows.append(("note", values["criterion_note"]))
-    bands = tuple((f"{band:g}", _g(floor, 3), _g(predicted, 3), _g(limit, 3), f"{margin:.1f}", _g(stroke, 3))
+    bands = tuple((f"{band:g}", _g(floor, 3), _g(predicted, 3), _g(limit, 3), f"{margin:.1f}", _g(stroke * 1e3, 3))
                   for band, floor, predicted, limit, margin, stroke in zip(
                       values["floor_band_hz"], values["floor_velocity_um_s"], values["predicted_velocity_um_s"],
                       values["criterion_limit_um_s"], values["criterion_margin_db"], values["mount_stroke_rms_mm"]))
     table = Table(("Band (Hz)", "Floor (µm/s RMS)", "Equipment (µm/s RMS)", "Limit (µm/s RMS)", "Margin (dB)",
-                   "Mount stroke (mm RMS)"), bands, title="One-third-octave bands",
+                   "Mount stroke (µm RMS)"), bands, title="One-third-octave bands",
                   note="Margin = 20 log10(limit / equipment velocity); positive is below the limit.")
     caption = ("Floor velocity (dashed), predicted equipment velocity on the mounts (solid), criterion (dash-dot), "
                "worst band (diamond).")
@@ -495,8 +495,21 @@ class _FigureSource:
         side = self._place(view.side_plot, (CONTENT_WIDTH / 10.0 - 4.0) / 2.0, height_mm)
         view.show_result(body, mounts, rigid_body.modes(body, mounts), rigid_body.static_loads(body, mounts))
         for plot in (plan, side):
+            self._make_room_for_labels(plot)
             self._fit(plot)
         return [plan, side]
+
+    @staticmethod
+    def _make_room_for_labels(plot) -> None:
+        """Widen the view to the right so mount labels beside the rightmost mounts stay inside the plot.
+
+        The legend is hidden: the caption under the figure explains the markers.
+        """
+        item = plot.getPlotItem()
+        if item.legend is not None:
+            item.legend.setVisible(False)
+        (x0, x1), (y0, y1) = item.getViewBox().viewRange()
+        item.getViewBox().setRange(xRange=(x0, x1 + 0.4 * (x1 - x0)), yRange=(y0, y1), padding=0.0)
 
     def _build_floor(self, height_mm: float):
         from app.floor_view import FloorView
@@ -737,7 +750,9 @@ class SheetRenderer:
                 if bullet:
                     self._draw_text(painter, font, colour, x, y, indent, height, bullet.strip())
                 self._draw_text(painter, font, colour, x + indent, y, CONTENT_WIDTH - indent, height, text)
-            pieces.append(_Piece(height + 12, draw, gap_after=4, kind="paragraph"))
+            pieces.append(_Piece(height + 12, draw, gap_after=4, kind="paragraph",
+                                 keep_with_next=block.tone == "caution"))
+        pieces[-1].keep_with_next = False    # the safety notes stay together; nothing else binds
         pieces[-1].gap_after = 20
         return pieces
 

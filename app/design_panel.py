@@ -90,6 +90,7 @@ class NumberBinding:
     get: Callable[[DesignInputs], float | None]
     changes: Callable[[float], dict]
     integer: bool = False
+    is_list: bool = False
     row: FieldRow | None = None
     shown: object = None
 
@@ -109,6 +110,7 @@ class DesignPanel(QtWidgets.QWidget):
         self.units = model.view.units
         self.fields: dict[str, NumberBinding] = {}
         self._shown: dict[str, object] = {}
+        self._editing: str | None = None
         outer = QtWidgets.QVBoxLayout(self)
         outer.setContentsMargins(6, 6, 6, 6)
 
@@ -132,6 +134,10 @@ class DesignPanel(QtWidgets.QWidget):
         self._add_number(form, NumberBinding(
             "speed_max", "", "speed", "machine.speed_rpm",
             lambda d: d.speed_max_rpm, lambda v: {"speed_max_rpm": v}), label_widget=self.range_check)
+        self._add_number(form, NumberBinding(
+            "duty_speeds", "Duty speeds", "speed", "machine.duty_speeds_rpm", lambda d: d.duty_speeds_rpm,
+            lambda v: {"duty_speeds_rpm": v}, is_list=True),
+            tooltip="Further speeds the machine runs at for long, separated by spaces or semicolons (optional)")
 
         # ---- mounts
         mounts_box, form = self._group("Mounts", outer)
@@ -157,13 +163,12 @@ class DesignPanel(QtWidgets.QWidget):
                 f"cg_{axis}", f"CG offset {axis}", "length", None,
                 lambda d, i=index: d.cg_offset_m[i],
                 lambda v, i=index: {"cg_offset_m": self._pair("cg_offset_m", i, v)}))
-        self.loads_edit = QtWidgets.QLineEdit()
-        self.loads_edit.setObjectName("loads")
-        self.loads_edit.setToolTip("One static load per mount, separated by spaces or semicolons")
-        self.loads_row = FieldRow(self.loads_edit, unit_symbol("force", self.units))
-        self.loads_edit.textEdited.connect(self._loads_edited)
-        self.loads_label = QtWidgets.QLabel("Loads")
-        form.addRow(self.loads_label, self.loads_row)
+        self._add_number(form, NumberBinding(
+            "loads", "Loads", "force", None, lambda d: d.loads_n,
+            lambda v: {"load_layout": "per_mount", "loads_n": v}, is_list=True),
+            tooltip="One static load per mount, separated by spaces or semicolons")
+        self.loads_row = self.fields["loads"].row
+        self.loads_edit = self.loads_row.editor
 
         # ---- damping
         damping_box, form = self._group("Damping", outer)
@@ -235,9 +240,11 @@ class DesignPanel(QtWidgets.QWidget):
         combo.currentIndexChanged.connect(handler)
         return combo
 
-    def _add_number(self, form: QtWidgets.QFormLayout, binding: NumberBinding, label_widget=None) -> None:
+    def _add_number(self, form: QtWidgets.QFormLayout, binding: NumberBinding, label_widget=None,
+                    tooltip: str = "") -> None:
         edit = QtWidgets.QLineEdit()
         edit.setObjectName(binding.key)
+        edit.setToolTip(tooltip)
         binding.row = FieldRow(edit, unit_symbol(binding.kind, self.units))
         edit.textEdited.connect(lambda text, b=binding: self._number_edited(b, text))
         self.fields[binding.key] = binding
@@ -246,19 +253,29 @@ class DesignPanel(QtWidgets.QWidget):
         form.addRow(label, binding.row)
 
     # ------------------------------------------------------------------ widget -> model
+    def _parse(self, binding: NumberBinding, text: str) -> float:
+        """One typed number in display units to SI (range-checked where core gives a range)."""
+        if binding.limit is not None:
+            return parse_display(text, binding.limit, binding.kind, self.units, binding.integer)
+        symbol = unit_symbol(binding.kind, self.units)
+        shown = parse_number(text, binding.key, f"must be a number{' in ' + symbol if symbol else ''}")
+        return float(from_display(shown, binding.kind, self.units))
+
     def _number_edited(self, binding: NumberBinding, text: str) -> None:
         try:
-            if binding.limit is not None:
-                value = parse_display(text, binding.limit, binding.kind, self.units, binding.integer)
+            if binding.is_list:
+                parts = text.replace(";", " ").replace(",", " ").split()
+                value = tuple(self._parse(binding, part) for part in parts)
             else:
-                symbol = unit_symbol(binding.kind, self.units)
-                shown = parse_number(text, binding.key, f"must be a number{' in ' + symbol if symbol else ''}")
-                value = float(from_display(shown, binding.kind, self.units))
+                value = self._parse(binding, text)
             changes = binding.changes(value)
+            self._editing = binding.key  # the field being typed in keeps its text as typed
             self.model.update_design(merge_key=f"field.{binding.key}", **changes)
         except InputError as error:
             binding.row.set_error(_error_text(error))
             return
+        finally:
+            self._editing = None
         binding.shown = binding.get(self.model.design)
         binding.row.set_error(None)
         self._clear_pending_errors()
@@ -284,6 +301,7 @@ class DesignPanel(QtWidgets.QWidget):
         self._update_visibility()
 
     def _name_edited(self, text: str) -> None:
+        self._shown["name"] = text
         self.model.set_name(text)
 
     def _range_toggled(self, checked: bool) -> None:
@@ -310,19 +328,6 @@ class DesignPanel(QtWidgets.QWidget):
     def _equal_loads(self, count: int) -> tuple:
         design = self.model.design.with_changes(mount_count=count, load_layout="equal")
         return tuple(float(v) for v in mount_loads(design))
-
-    def _loads_edited(self, text: str) -> None:
-        parts = [part for part in text.replace(";", " ").replace(",", " ").split() if part]
-        symbol = unit_symbol("force", self.units)
-        try:
-            loads = tuple(float(from_display(parse_number(p, "mounts.loads_n", f"every load must be a number in "
-                                                                                f"{symbol}"), "force", self.units))
-                          for p in parts)
-        except InputError as error:
-            self.loads_row.set_error(_error_text(error))
-            return
-        if self._apply(self.loads_row, merge_key="field.loads", load_layout="per_mount", loads_n=loads):
-            self._shown["loads"] = self.model.design.loads_n
 
     def _damping_model_changed(self, _index: int) -> None:
         self.model.set_damping_model(self.damping_combo.currentData())
@@ -369,7 +374,6 @@ class DesignPanel(QtWidgets.QWidget):
         self.units = system
         for binding in self.fields.values():
             binding.row.unit_label.setText(unit_symbol(binding.kind, system))
-        self.loads_row.unit_label.setText(unit_symbol("force", system))
         self.refresh(force=True)
 
     def refresh(self, force: bool = False) -> None:
@@ -377,9 +381,13 @@ class DesignPanel(QtWidgets.QWidget):
         design = self.model.design
         for binding in self.fields.values():
             value = binding.get(design)
+            if binding.key == self._editing and not force:
+                binding.shown = value
+                continue
             if force or value != binding.shown:
                 edit = binding.row.editor
-                text = "" if value is None else f"{to_display(value, binding.kind, self.units):.6g}"
+                values = () if value is None else value if binding.is_list else (value,)
+                text = "; ".join(f"{to_display(v, binding.kind, self.units):.6g}" for v in values)
                 with signals_blocked(edit):
                     edit.setText(text)
                 binding.row.set_error(None)
@@ -389,8 +397,6 @@ class DesignPanel(QtWidgets.QWidget):
         self._sync("count", design.mount_count, force, self.count_spin.setValue, self.count_spin, self.count_row)
         self._sync("layout", design.load_layout, force, lambda v: self._select(self.layout_combo, v),
                    self.layout_combo, self.layout_row)
-        self._sync("loads", design.loads_n, force, lambda v: self.loads_edit.setText(
-            "; ".join(f"{to_display(x, 'force', self.units):.6g}" for x in v)), self.loads_edit, self.loads_row)
         self._sync("damping_model", design.damping.model, force,
                    lambda v: self._select(self.damping_combo, v), self.damping_combo)
         self._sync("tuning", design.tuning, force, lambda v: self._select(self.tuning_combo, v), self.tuning_combo)
@@ -423,6 +429,7 @@ class DesignPanel(QtWidgets.QWidget):
             "span_x": layout == "cg_offset", "span_y": layout == "cg_offset",
             "cg_x": layout == "cg_offset", "cg_y": layout == "cg_offset",
             "natural_frequency": self.tuning_combo.currentData() == "natural_frequency",
+            "loads": layout == "per_mount",
             "force": kind == "force", "unbalance": kind == "unbalance", "rotor_mass": kind == "balance_grade",
         }
         for key, visible in shown.items():
@@ -434,8 +441,6 @@ class DesignPanel(QtWidgets.QWidget):
             label = row.property("form_label")
             if label is not None:
                 label.setVisible(visible)
-        for widget in (self.loads_row, self.loads_label):
-            widget.setVisible(layout == "per_mount")
         for widget in (self.grade_row, self.grade_label):
             widget.setVisible(kind == "balance_grade")
 

@@ -15,6 +15,7 @@ import os
 
 os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
 from PySide6 import QtCore, QtGui, QtWidgets  # noqa: E402  (PySide6 before pyqtgraph)
+import numpy as np  # noqa: E402
 import pyqtgraph as pg  # noqa: E402
 
 from app.style import FONT_POINTS, LINE_WIDTH, MARKER_SIZE, PALETTE  # noqa: E402
@@ -72,6 +73,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self._damping = None
         self._natural_frequency_hz = None
         self._reference_key = None
+        self._duty_in_legend = False
         self.ci.layout.setContentsMargins(*(4 * self.scale,) * 4)
         self.ci.layout.setVerticalSpacing(6 * self.scale)
 
@@ -147,6 +149,12 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.operating_phase = self.phase_plot.plot(**marker)
         self.operating_magnitude.setZValue(20)
         self.operating_phase.setZValue(20)
+        duty = dict(pen=None, symbol="d", symbolSize=MARKER_SIZE * self.scale, symbolBrush=PALETTE["background"],
+                    symbolPen=pg.mkPen(PALETTE["operating"], width=2.0 * self.scale))
+        self.duty_magnitude = self.magnitude_plot.plot(**duty)
+        self.duty_phase = self.phase_plot.plot(**duty)
+        self.duty_magnitude.setZValue(19)
+        self.duty_phase.setZValue(19)
 
         self.legend = pg.LegendItem(offset=(-8 * self.scale, 8 * self.scale),
                                     labelTextSize=f"{round(FONT_POINTS * 0.95 * self.scale)}pt",
@@ -271,15 +279,29 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
                 else:
                     band.setRegion((_lx(float(px[0])), _lx(float(px[-1]))))
                     band.setVisible(True)
+            duty = result.duty_points
+            dx = x_of(np.array([point.frequency_ratio for point in duty], dtype=float))
+            self.duty_magnitude.setData(dx, y_of(np.array([point.transmissibility for point in duty], dtype=float)))
+            self.duty_phase.setData(dx, np.array([point.phase_deg for point in duty], dtype=float))
+            self._show_duty_in_legend(bool(duty))
         else:
-            self.operating_magnitude.setData([], [])
-            self.operating_phase.setData([], [])
+            for item in (self.operating_magnitude, self.operating_phase, self.duty_magnitude, self.duty_phase):
+                item.setData([], [])
             for band in self.speed_bands:
                 band.setVisible(False)
+            self._show_duty_in_legend(False)
         self._set_legend(0, f"{design_curve.label} (design)")
         symbol = "ζ" if damping.model == "viscous" else "η"
         self._set_legend(1, f"reference {symbol}")
         self._set_legend(3, f"target {design.isolation_percent:g} %")
+
+    def _show_duty_in_legend(self, shown: bool) -> None:
+        if shown != self._duty_in_legend:
+            self._duty_in_legend = shown
+            if shown:
+                self.legend.addItem(self.duty_magnitude, "duty speeds")
+            else:
+                self.legend.removeItem(self.duty_magnitude)
 
     def _set_text(self, item: pg.TextItem, text: str, x: float, y: float) -> None:
         if item.toPlainText() != text:

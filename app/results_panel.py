@@ -28,6 +28,7 @@ ROWS = (
     ("load_per_mount", "Load per mount"),
     ("peak", "Resonance peak"),
     ("worst", "Worst over speed range"),
+    ("duty", "Duty speeds"),
     ("excitation_force", "Exciting force"),
     ("transmitted_force", "Transmitted force, total"),
     ("transmitted_per_mount", "Transmitted force per mount"),
@@ -58,6 +59,10 @@ def result_texts(design: DesignInputs, evaluation: Evaluation, system: str) -> d
                  f"{result.peak_transmissibility:.4g}× at r = {result.peak_frequency_ratio:.4g}"),
         "worst": f"{result.worst_transmissibility:.4g} at {format_value(result.worst_speed_rpm, 'speed', system)}",
     }
+    if result.duty_points:
+        texts["duty"] = "\n".join(
+            f"{format_value(point.speed_rpm, 'speed', system)}: |T| {point.transmissibility:.4g}, "
+            f"isolation {point.isolation_percent:.4g} %" for point in result.duty_points)
     if result.excitation_force_n is not None:
         texts.update({
             "excitation_force": format_value(result.excitation_force_n, "force", system),

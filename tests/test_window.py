@@ -252,6 +252,16 @@ def test_invalid_entries_are_refused_with_the_allowed_range(main_window, qtbot):
     type_into(qtbot, panel.fields["speed_max"].row.editor, "900")
     assert "at least the lowest speed" in panel.fields["speed_max"].row.error
     assert window.model.design.speed_max_rpm == window.model.design.speed_rpm
+    # Loads per mount must add up to the weight (core rule), typed in the display unit (lbf here).
+    panel.layout_combo.setCurrentIndex(panel.layout_combo.findData("per_mount"))
+    assert window.model.design.load_layout == "per_mount"
+    paste_into(qtbot, panel.fields["loads"].row.editor, "100; 100; 100; 100")
+    assert "must add up to the machine weight" in panel.fields["loads"].row.error
+    share = 800.0 / LB / 4  # 800 kg over four mounts, in lbf (1 lbf = 1 lb × g)
+    paste_into(qtbot, panel.fields["loads"].row.editor, "; ".join([f"{share:.8g}"] * 4))
+    assert not panel.fields["loads"].row.error
+    assert sum(window.model.design.loads_n) == pytest.approx(800.0 * G, rel=1e-8)
+    panel.layout_combo.setCurrentIndex(panel.layout_combo.findData("equal"))
     # An odd mount count does not fit a centre-of-gravity layout: the combo says so.
     panel.count_spin.setValue(5)
     panel.layout_combo.setCurrentIndex(panel.layout_combo.findData("cg_offset"))
@@ -482,3 +492,36 @@ def test_natural_frequency_chosen_directly(main_window, qtbot):
     window.operating.ratio_slider.setValue(200)  # the slider takes over the tuning
     assert window.model.design.tuning == "frequency_ratio"
     assert panel.tuning_combo.currentData() == "frequency_ratio"
+
+
+def test_duty_speeds_are_entered_marked_and_reported(main_window, qtbot):
+    window = main_window()
+    panel = window.design_panel
+    window.operating.damping_spin.setValue(0.1)
+    window.operating.ratio_spin.setValue(2.0)  # at 1480 r/min: ωn ↔ 740 r/min
+    paste_into(qtbot, panel.fields["duty_speeds"].row.editor, "3700; 7400")
+    settle(qtbot, window)
+    assert window.model.design.duty_speeds_rpm == (3700.0, 7400.0)
+    x, y = curve_xy(window.plots.duty_magnitude)
+    np.testing.assert_allclose(x, [5.0, 10.0])  # r = n / 740 r/min
+    # abs T at r = 5 with ζ = 0.1: 0.05887 (REFERENCES.md §1 table, Vigran eq. 2.33)
+    assert f"{y[0]:.4g}" == "0.05887"
+    assert "3700 r/min: |T| 0.05887" in window.results.value_labels["duty"].text()
+    paste_into(qtbot, panel.fields["duty_speeds"].row.editor, "3700; 0")
+    assert "from 1 to 1e+06 r/min" in panel.fields["duty_speeds"].row.error
+    assert window.model.design.duty_speeds_rpm == (3700.0, 7400.0)
+
+
+def test_typing_keeps_the_text_as_typed_while_values_apply_live(main_window, qtbot):
+    window = main_window()
+    mass = window.design_panel.fields["mass"].row.editor
+    type_into(qtbot, mass, "1.50")  # "1" and "1." and "1.5" are valid on the way
+    assert mass.text() == "1.50" and window.model.design.mass_kg == 1.5
+    type_into(qtbot, window.design_panel.name_edit, "Fan deck")
+    window.operating.ratio_slider.setValue(10)
+    assert window.design_panel.name_edit.text() == "Fan deck" and window.model.name == "Fan deck"
+    # Typing a value merges into one undo step per field.
+    window.actions["undo"].trigger()  # the slider step
+    window.actions["undo"].trigger()  # the name
+    window.actions["undo"].trigger()  # the whole mass entry
+    assert window.model.design.mass_kg == 500.0 and mass.text() == "500"

@@ -22,7 +22,6 @@ import importlib.metadata
 import math
 import os
 import sys
-import tempfile
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Callable
@@ -369,11 +368,14 @@ def sheet_content(project: Project, values: dict, source_name: str | None = None
     blocks += [Heading("Warnings"),
                Paragraphs(tuple(values["warnings"]) or ("No warnings for this design.",), title="Design warnings",
                           tone="warning" if values["warnings"] else "plain")]
+    low, high = project.design.speed_range_rpm
+    caption = (f"Design curve {damping.label} (bold), reference damping (faint), "
+               + ("operating points at the lowest and highest speed (orange) with the speed range between "
+                  "(orange band), " if high > low else "operating point (orange), ")
+               + ("duty speeds (open diamonds), " if project.design.duty_speeds_rpm else "")
+               + f"isolation above ω/ωn = √2 (shaded), target {project.design.isolation_percent:g} % (dash-dot).")
     blocks += [Heading("Transmissibility"),
-               Figure("transmissibility", "Transmissibility magnitude and phase", 120.0,
-                      f"Design curve {damping.label} (bold), reference damping (faint), operating point (orange), "
-                      f"isolation above ω/ωn = √2 (shaded), target {project.design.isolation_percent:g} % "
-                      "(dash-dot).")]
+               Figure("transmissibility", "Transmissibility magnitude and phase", 120.0, caption)]
     studies = project.studies
     if studies.passage is not None:
         blocks += _passage_blocks(project, values)
@@ -447,21 +449,22 @@ class _FigureSource:
         return widget
 
     @staticmethod
-    def _fit(view) -> None:
-        """Enlarge a laid-out plot (same aspect) until its scene layout gets at least its minimum size.
+    def _fit(*views) -> None:
+        """Enlarge laid-out plots (same aspect, one factor for all of a figure) until each scene layout
+        gets at least its minimum size.
 
-        The page rectangle stays the same, so the plot's text comes out a
+        The page rectangle stays the same, so the plots' text comes out a
         little smaller instead of being cut off at the right or bottom.
         """
         QtCore, _, QtWidgets = _qt()
         QtWidgets.QApplication.processEvents()
-        central = getattr(view, "centralWidget", None)
-        if central is None:
-            return
-        need = central.effectiveSizeHint(QtCore.Qt.SizeHint.MinimumSize)
-        factor = max(need.width() / max(view.width(), 1), need.height() / max(view.height(), 1))
+        factor = 1.0
+        for view in views:
+            need = view.centralWidget.effectiveSizeHint(QtCore.Qt.SizeHint.MinimumSize)
+            factor = max(factor, need.width() / max(view.width(), 1), need.height() / max(view.height(), 1))
         if factor > 1.0:
-            view.resize(math.ceil(view.width() * factor) + 2, math.ceil(view.height() * factor) + 2)
+            for view in views:
+                view.resize(math.ceil(view.width() * factor) + 2, math.ceil(view.height() * factor) + 2)
             QtWidgets.QApplication.processEvents()
 
     def _build_transmissibility(self, height_mm: float):
@@ -473,6 +476,7 @@ class _FigureSource:
 
     def _build_passage(self, height_mm: float):
         from app.passage_view import PassageView
+        from app.style import PALETTE
         from core.studies import simulate_passages
         views = []
         for run in simulate_passages(self.project.design, self.result, self.project.studies.passage):
@@ -480,8 +484,14 @@ class _FigureSource:
             self._keep(view)
             plots = self._place(view.plots, (CONTENT_WIDTH / 10.0 - 4.0) / 2.0, height_mm)
             view.show_result(run)
-            self._fit(plots)
+            # A short title, so the plot keeps its width: the sheet's rows carry the numbers.
+            view.displacement_plot.setTitle("Run-up from rest" if run.direction == "up" else "Coast-down to rest",
+                                            color=PALETTE["foreground"])
+            legend = view.displacement_plot.legend
+            if legend is not None:      # it would cover the peak; the caption names the lines
+                legend.setVisible(False)
             views.append(plots)
+        self._fit(*views)
         return views
 
     def _build_rigid_body(self, height_mm: float):
@@ -496,7 +506,7 @@ class _FigureSource:
         view.show_result(body, mounts, rigid_body.modes(body, mounts), rigid_body.static_loads(body, mounts))
         for plot in (plan, side):
             self._make_room_for_labels(plot)
-            self._fit(plot)
+        self._fit(plan, side)
         return [plan, side]
 
     @staticmethod
@@ -913,23 +923,15 @@ def page_png_paths(pdf_path: str | os.PathLike, count: int) -> list[Path]:
     return [pdf_path.with_name(f"{pdf_path.stem}_p{index + 1}.png") for index in range(count)]
 
 
-def _write_pdf_atomically(renderer: SheetRenderer, path: Path) -> None:
-    folder = path.parent if str(path.parent) else Path(".")
-    try:
-        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".pdf", dir=folder)
-    except OSError as error:
-        raise MountsmithError(f"{path}: was not written ({error.strerror or error})") from None
-    os.close(handle)
-    try:
-        renderer.write_pdf(temporary)
-        if os.path.getsize(temporary) == 0:
-            raise MountsmithError(f"{path}: was not written (the PDF came out empty)")
-        os.replace(temporary, path)
-    except OSError as error:
-        raise MountsmithError(f"{path}: was not written ({error.strerror or error})") from None
-    finally:
-        if os.path.exists(temporary):
-            os.unlink(temporary)
+class _PdfFile:
+    """The sheet's PDF in the shape :func:`app.export.save_image` writes atomically (``save(path, format)``)."""
+
+    def __init__(self, renderer: SheetRenderer):
+        self.renderer = renderer
+
+    def save(self, path: str, _format: str) -> bool:
+        self.renderer.write_pdf(path)
+        return os.path.getsize(path) > 0
 
 
 def export_review_sheet(project: Project, path: str | os.PathLike, source_name: str | None,
@@ -950,7 +952,7 @@ def _write_sheet(project: Project, values: dict, path, source_name, png: bool, d
     path = Path(path)
     renderer = SheetRenderer(sheet_content(project, values, source_name, date), project)
     try:
-        _write_pdf_atomically(renderer, path)
+        save_image(_PdfFile(renderer), path)    # temporary file beside it, then replace
         written = [path]
         if png:
             for index, png_path in enumerate(page_png_paths(path, renderer.page_count)):

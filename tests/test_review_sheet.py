@@ -280,11 +280,15 @@ def test_pdf_and_png_pages(path, written):
         assert central.width() <= width + 0.5 and central.height() <= height + 0.5
 
 
-def test_failed_write_keeps_the_previous_sheet(tmp_path, qapp, monkeypatch):
-    project = load_project(DEMO_PROJECTS[0])
+def test_failed_write_keeps_the_previous_sheet_and_no_widget_is_left(tmp_path, qapp, monkeypatch):
+    from PySide6 import QtWidgets
+    shown_before = {id(w) for w in QtWidgets.QApplication.topLevelWidgets() if w.isVisible()}
+    project = load_project(DEMO_PROJECTS[1])
     out = tmp_path / "review.pdf"
-    review_sheet.export_review_sheet(project, out, None)
+    assert review_sheet.export_review_sheet(project, out, None) == [out]
     before = out.read_bytes()
+    left = [w for w in QtWidgets.QApplication.topLevelWidgets() if w.isVisible() and id(w) not in shown_before]
+    assert not left, f"plot widgets left open after an export: {left}"
 
     def broken(self, path, title=""):
         raise OSError(28, "No space left on device")

@@ -21,6 +21,7 @@ import datetime
 import importlib.metadata
 import math
 import os
+import re
 import sys
 from dataclasses import dataclass
 from pathlib import Path
@@ -533,6 +534,10 @@ class _FigureSource:
         plot = self._place(view.plot_widget, CONTENT_WIDTH / 10.0, height_mm)
         view.show_result(check)
         self._fit(plot)
+        # Headroom (log10 units) so a criterion line or a floor peak at the top is not drawn on the frame.
+        box = plot.getPlotItem().getViewBox()
+        (x0, x1), (y0, y1) = box.viewRange()
+        box.setRange(xRange=(x0, x1), yRange=(y0 - 0.1, y1 + 0.25), padding=0.0)
         return [plot]
 
     def _keep(self, widget) -> None:
@@ -884,9 +889,16 @@ class SheetRenderer:
         self.figures.close()
 
 
+_NUMBER_BEFORE_UNIT = re.compile(r"(?<=\d) (?=[A-Za-zµ%°×])")
+
+
 def _typeset(text: str) -> str:
-    """Keep "ζ = 0.06", "N/mm" and "N·s/m" on one line: no-break spaces around "=", a word joiner after "/"."""
-    return text.replace(" = ", "\u00a0=\u00a0").replace("/", "/\u2060")
+    """Keep "ζ = 0.06", "2.2 m", "N/mm" and "N·s/m" on one line.
+
+    No-break spaces around "=" and between a number and its unit, a word joiner after "/".
+    """
+    text = _NUMBER_BEFORE_UNIT.sub("\u00a0", text.replace(" = ", "\u00a0=\u00a0"))
+    return text.replace("/", "/\u2060")
 
 
 def _scene_dpi() -> int:

@@ -32,8 +32,7 @@ def isolated_qsettings(request):
         yield None
         return
     from PySide6.QtCore import QSettings
-    folder = request.getfixturevalue("tmp_path") / "qsettings"
-    folder.mkdir()
+    folder = request.getfixturevalue("tmp_path_factory").mktemp("qsettings")  # beside, not inside, tmp_path
     QSettings.setPath(QSettings.Format.IniFormat, QSettings.Scope.UserScope, str(folder))
     yield folder
 

@@ -66,10 +66,10 @@ class Heading:
 
 @dataclass(frozen=True)
 class Rows:
-    """Label/value rows, in one or two columns."""
+    """Label/value rows, in one or two columns; ``key`` names the block for look-ups (not printed)."""
 
     rows: tuple[tuple[str, str], ...]
-    title: str = ""
+    key: str = ""
     columns: int = 1
 
 
@@ -81,6 +81,7 @@ class Table:
     rows: tuple[tuple[str, ...], ...]
     title: str = ""
     note: str = ""
+    key: str = ""
 
 
 @dataclass(frozen=True)
@@ -90,6 +91,7 @@ class Paragraphs:
     paragraphs: tuple[str, ...]
     title: str = ""
     tone: str = "plain"
+    key: str = ""
 
 
 @dataclass(frozen=True)
@@ -124,7 +126,7 @@ class Sheet:
             if isinstance(block, Heading):
                 out.append(block.text)
             elif isinstance(block, Rows):
-                out += [block.title] + [text for row in block.rows for text in row]
+                out += [text for row in block.rows for text in row]
             elif isinstance(block, Table):
                 out += [block.title, *block.headers] + [text for row in block.rows for text in row] + [block.note]
             elif isinstance(block, Paragraphs):
@@ -137,12 +139,12 @@ class Sheet:
     def headings(self) -> list[str]:
         return [block.text for block in self.blocks if isinstance(block, Heading)]
 
-    def block(self, title: str) -> Block:
-        """The first Rows/Table/Paragraphs/Figure block with this title."""
+    def block(self, name: str) -> Block:
+        """The first Rows/Table/Paragraphs/Figure block with this key or printed title."""
         for block in self.blocks:
-            if not isinstance(block, Heading) and block.title == title:
+            if not isinstance(block, Heading) and name in (getattr(block, "key", ""), getattr(block, "title", "")):
                 return block
-        raise KeyError(title)
+        raise KeyError(name)
 
 
 def program_version() -> str:
@@ -229,7 +231,7 @@ def _mount_table(values: dict) -> Table:
             f"{values['static_stiffness_total_n_per_m'] * 1e-3:.5g} N/mm.")
     if values["damping_is_equivalent_viscous"]:
         note += " Damping is the viscous equivalent of the loss factor at operating speed."
-    return Table(tuple(headers), tuple(rows), title="Mount values", note=note)
+    return Table(tuple(headers), tuple(rows), note=note, key="Mount values")
 
 
 def _duty_table(values: dict) -> Table | None:
@@ -259,7 +261,7 @@ def _passage_blocks(project: Project, values: dict) -> list[Block]:
                "peak (dot).")
     if values["startup_peak_displacement_mm"] is None:
         caption += " No excitation is given: amplitudes are drawn for a nominal unbalance; the ratios hold."
-    return [Heading("Passage through resonance"), Rows(tuple(rows), title="Passage results"),
+    return [Heading("Passage through resonance"), Rows(tuple(rows), key="Passage results"),
             Figure("passage", "Run-up (left) and coast-down (right)", 95.0, caption)]
 
 
@@ -285,7 +287,7 @@ def _rigid_body_blocks(project: Project, values: dict) -> list[Block]:
                        + ("" if values["speed_max_rpm"] == values["speed_rpm"]
                           else f" to {values['speed_max_rpm'] / 60.0:.4g} Hz") + ".")
     caption = "Mounts drawn larger for larger loads; a downward triangle marks a mount pulled upward; + the CG."
-    return [Heading("Machine as a rigid body on its mounts"), Rows(tuple(rows), title="Rigid-body inputs and loads"),
+    return [Heading("Machine as a rigid body on its mounts"), Rows(tuple(rows), key="Rigid-body inputs and loads"),
             table, Figure("rigid_body", "Mount layout: plan and side", 72.0, caption)]
 
 
@@ -310,7 +312,7 @@ def _floor_blocks(values: dict) -> list[Block]:
                   note="Margin = 20 log10(limit / equipment velocity); positive is below the limit.")
     caption = ("Floor velocity (dashed), predicted equipment velocity on the mounts (solid), criterion (dash-dot), "
                "worst band (diamond).")
-    return [Heading("Floor vibration against a criterion"), Rows(tuple(rows), title="Criterion check"),
+    return [Heading("Floor vibration against a criterion"), Rows(tuple(rows), key="Criterion check"),
             Figure("floor", "One-third-octave velocity spectra", 88.0, caption), table]
 
 
@@ -324,7 +326,7 @@ def _two_stage_blocks(project: Project, values: dict) -> list[Block]:
             ("transmissibility at speed, two stages", _g(values["two_stage_transmissibility"])),
             ("transmissibility at speed, single stage", _g(values["single_stage_transmissibility"])),
             ("gain of the second stage", f"{_g(values['two_stage_gain_db'])} dB"))
-    return [Heading("Two-stage isolation"), Rows(rows, title="Two-stage results")]
+    return [Heading("Two-stage isolation"), Rows(rows, key="Two-stage results")]
 
 
 def sheet_content(project: Project, values: dict, source_name: str | None = None,
@@ -352,22 +354,22 @@ def sheet_content(project: Project, values: dict, source_name: str | None = None
     blocks: list[Block] = []
     if project.notes.strip():
         blocks.append(Paragraphs((_clipped(project.notes.strip(), MAX_NOTES_CHARS),), title="Notes"))
-    blocks += [Heading("Inputs"), Rows(_input_rows(project), title="Design inputs", columns=2)]
+    blocks += [Heading("Inputs"), Rows(_input_rows(project), key="Design inputs", columns=2)]
 
     rows = summary_rows(values)
     damping = project.design.damping
     symbol = "ζ" if damping.model == "viscous" else "η"
     operating = [row for row in rows if row[0] in _OPERATING_LABELS]
     operating.append(("damping", f"{symbol} = {damping.value:.4g}"))
-    blocks += [Heading("Operating point"), Rows(tuple(operating), title="Operating point", columns=2)]
+    blocks += [Heading("Operating point"), Rows(tuple(operating), key="Operating point", columns=2)]
     blocks += [Heading("Values per mount (catalog-neutral)"), _mount_table(values)]
     blocks += [Heading("Results at the operating point"),
-               Rows(tuple(row for row in rows if row[0] not in _OPERATING_LABELS), title="Results")]
+               Rows(tuple(row for row in rows if row[0] not in _OPERATING_LABELS), key="Results")]
     duty = _duty_table(values)
     if duty is not None:
         blocks.append(duty)
     blocks += [Heading("Warnings"),
-               Paragraphs(tuple(values["warnings"]) or ("No warnings for this design.",), title="Design warnings",
+               Paragraphs(tuple(values["warnings"]) or ("No warnings for this design.",), key="Design warnings",
                           tone="warning" if values["warnings"] else "plain")]
     low, high = project.design.speed_range_rpm
     caption = (f"Design curve {damping.label} (bold), reference damping (faint), "
@@ -386,7 +388,7 @@ def sheet_content(project: Project, values: dict, source_name: str | None = None
         blocks += _floor_blocks(values)
     if studies.two_stage is not None:
         blocks += _two_stage_blocks(project, values)
-    blocks += [Heading(SAFETY_TITLE), Paragraphs(SAFETY_NOTES, title="Safety notes in full", tone="caution")]
+    blocks += [Heading(SAFETY_TITLE), Paragraphs(SAFETY_NOTES, tone="caution", key="Safety notes in full")]
     return Sheet(title=_clipped(project.name, MAX_NAME_CHARS) or "Untitled design", title_rows=title_rows,
                  blocks=tuple(blocks))
 

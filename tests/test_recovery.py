@@ -3,8 +3,10 @@
 The crash test at the end starts the real window in a subprocess, makes an unsaved change,
 waits for the recovery copy, kills the process with SIGKILL and restores from the copy.
 """
+import errno
 import json
 import os
+import select
 import signal
 import subprocess
 import sys
@@ -151,7 +153,7 @@ def test_discard_removes_only_own_copy(folder):
     discard_recovery()  # nothing left of ours: no error
 
 
-def test_failed_write_keeps_previous_copy_and_leaves_no_temporary(folder, monkeypatch):
+def test_failed_write_keeps_previous_copy_and_leaves_no_temporary(folder):
     first = _changed_demo()
     path = write_recovery(first, DEMO)
     before = path.read_bytes()
@@ -159,10 +161,10 @@ def test_failed_write_keeps_previous_copy_and_leaves_no_temporary(folder, monkey
     def full(*args, **kwargs):
         raise OSError(28, "No space left on device")
 
-    monkeypatch.setattr(os, "replace", full)
-    with pytest.raises(ProjectFileError, match="No space left"):
-        write_recovery(first.with_design(DesignInputs(mass_kg=3.0)), DEMO)
-    monkeypatch.undo()
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setattr(os, "replace", full)
+        with pytest.raises(ProjectFileError, match="No space left"):
+            write_recovery(first.with_design(DesignInputs(mass_kg=3.0)), DEMO)
     assert path.read_bytes() == before
     assert not [p for p in folder.iterdir() if p.name.endswith(".tmp")]
 
@@ -176,22 +178,179 @@ def test_unusable_folder_is_reported_not_raised_as_traceback(tmp_path, monkeypat
     assert find_recovery() is None
 
 
+# ------------------------------------------------------------------ faults injected into saving
+# Each fault is raised where the operating system would raise it: creating the temporary
+# file (read-only folder, no permission, quota), writing, flushing, fsync, closing, renaming.
+
+FAULTS = {"ENOSPC": (errno.ENOSPC, "No space left on device"), "EDQUOT": (errno.EDQUOT, "Disk quota exceeded"),
+          "EIO": (errno.EIO, "Input/output error"), "EROFS": (errno.EROFS, "Read-only file system"),
+          "EACCES": (errno.EACCES, "Permission denied")}
+STAGES = ("mkstemp", "write", "flush", "fsync", "close", "replace")
+
+
+class _FaultyStream:
+    """A text stream that fails at one stage and is otherwise the real file."""
+
+    def __init__(self, inner, stage, fault):
+        self.inner, self.stage, self.fault = inner, stage, fault
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc):
+        self.inner.close()
+        if self.stage == "close" and exc[0] is None:
+            raise self.fault
+        return False
+
+    def write(self, text):
+        if self.stage == "write":
+            self.inner.write(text[: len(text) // 2])   # half the bytes reach the disk, then it is full
+            self.inner.flush()
+            raise self.fault
+        return self.inner.write(text)
+
+    def flush(self):
+        if self.stage == "flush":
+            raise self.fault
+        return self.inner.flush()
+
+    def fileno(self):
+        return self.inner.fileno()
+
+
+def _inject(monkeypatch, stage, fault):
+    from core import project as project_module
+    if stage == "mkstemp":
+        def refuse(*args, **kwargs):
+            raise fault
+        monkeypatch.setattr(project_module.tempfile, "mkstemp", refuse)
+    elif stage == "fsync":
+        def refuse(*args, **kwargs):
+            raise fault
+        monkeypatch.setattr(os, "fsync", refuse)
+    elif stage == "replace":
+        def refuse(*args, **kwargs):
+            raise fault
+        monkeypatch.setattr(os, "replace", refuse)
+    else:
+        real_fdopen = os.fdopen
+        monkeypatch.setattr(os, "fdopen", lambda *a, **k: _FaultyStream(real_fdopen(*a, **k), stage, fault))
+
+
+@pytest.mark.parametrize("stage", STAGES)
+@pytest.mark.parametrize("fault_name", sorted(FAULTS))
+@pytest.mark.parametrize("existing", [True, False], ids=["over-existing", "new-file"])
+def test_save_fault_leaves_previous_file_and_no_temporary(tmp_path, monkeypatch, stage, fault_name, existing):
+    code, text = FAULTS[fault_name]
+    tmp_path = tmp_path / "work"   # a folder of its own: nothing else may appear in it
+    tmp_path.mkdir()
+    path = tmp_path / "pump.msproj.json"
+    if existing:
+        save_project(load_project(DEMO), path)
+    before = path.read_bytes() if existing else None
+    _inject(monkeypatch, stage, OSError(code, text))
+    with pytest.raises(ProjectFileError) as caught:
+        save_project(_changed_demo(), path)
+    monkeypatch.undo()
+    message = str(caught.value)
+    assert text in message and "was not saved" in message and "\n" not in message
+    if existing:
+        assert path.read_bytes() == before
+    else:
+        assert not path.exists()
+    assert sorted(p.name for p in tmp_path.iterdir()) == (["pump.msproj.json"] if existing else [])
+
+
+@pytest.mark.parametrize("stage", STAGES)
+def test_recovery_write_fault_keeps_previous_copy(folder, stage):
+    path = write_recovery(load_project(DEMO), DEMO)
+    before = path.read_bytes()
+    with pytest.MonkeyPatch.context() as patch:
+        _inject(patch, stage, OSError(errno.ENOSPC, "No space left on device"))
+        with pytest.raises(ProjectFileError, match="No space left"):
+            write_recovery(_changed_demo(), DEMO)
+    assert path.read_bytes() == before
+    assert not [p for p in folder.iterdir() if p.name.endswith(".tmp")]
+    assert find_recovery(include_own=True).project == load_project(DEMO)
+
+
+FILE_SIZE_LIMIT_CHILD = """
+import os, resource, signal, sys
+from core.project import load_project, save_project
+from core.errors import ProjectFileError
+signal.signal(signal.SIGXFSZ, signal.SIG_IGN)      # the write then fails with EFBIG instead of killing us
+resource.setrlimit(resource.RLIMIT_FSIZE, (600, 600))
+project = load_project('demo_projects/rooftop_air_handler.json')
+try:
+    save_project(project, sys.argv[1])
+except ProjectFileError as error:
+    print(error)
+    sys.exit(3)
+"""
+
+
+def test_real_file_size_limit_during_write(tmp_path):
+    # A real kernel-side fault, no mock: RLIMIT_FSIZE makes the write fail part-way (EFBIG),
+    # as a full disk would. The previous file stays byte-identical and no temporary remains.
+    tmp_path = tmp_path / "work"
+    tmp_path.mkdir()
+    path = tmp_path / "small.msproj.json"
+    path.write_text("previous contents\n")
+    completed = subprocess.run([sys.executable, "-c", FILE_SIZE_LIMIT_CHILD, str(path)], cwd=ROOT,
+                               capture_output=True, text=True, timeout=60)
+    assert completed.returncode == 3, completed.stderr
+    assert "was not saved" in completed.stdout and "previous file is unchanged" in completed.stdout
+    assert path.read_text() == "previous contents\n"
+    assert [p.name for p in tmp_path.iterdir()] == ["small.msproj.json"]
+
+
+def test_really_read_only_folder(tmp_path):
+    folder = tmp_path / "locked"
+    folder.mkdir()
+    path = folder / "rig.msproj.json"
+    save_project(load_project(DEMO), path)
+    before = path.read_bytes()
+    folder.chmod(0o500)
+    try:
+        if os.access(folder, os.W_OK):
+            pytest.skip("running as a user who may write anywhere; the mocked EACCES/EROFS cases cover it")
+        with pytest.raises(ProjectFileError, match="Permission denied"):
+            save_project(_changed_demo(), path)
+        assert path.read_bytes() == before
+        assert [p.name for p in folder.iterdir()] == ["rig.msproj.json"]
+    finally:
+        folder.chmod(0o700)
+
+
 # ------------------------------------------------------------------ crash test with the real window
 
 CRASH_CHILD = """
 import os, sys
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 sys.path.insert(0, {root!r})
-from app import main_window
 from PySide6 import QtCore, QtWidgets
-app = QtWidgets.QApplication.instance() or QtWidgets.QApplication([])
-window = main_window.MainWindow({demo!r})
-window.show()
-app.processEvents()
-window.model.set_damping_value(0.137)
-window.model.update_design(mass_kg=777.25)
-print("changed", flush=True)
-app.exec()
+app = QtWidgets.QApplication([])   # the window's run() uses this instance
+
+
+def change():
+    windows = [w for w in app.topLevelWidgets() if type(w).__name__ == "MainWindow" and w.model.path]
+    if not windows:
+        QtCore.QTimer.singleShot(20, change)
+        return
+    window = windows[0]
+    if getattr(window, "autosave", None) is None:
+        print("the window has no autosave attached", flush=True)
+        os._exit(4)
+    window.model.set_damping_value(0.137)
+    window.model.update_design(mass_kg=777.25)
+    print("changed", flush=True)
+
+
+QtCore.QTimer.singleShot(0, change)
+{install}
+from app.cli import main
+sys.exit(main([{demo!r}]))   # exactly what `mountsmith FILE` runs
 """
 
 
@@ -204,15 +363,18 @@ def test_kill_after_unsaved_change_leaves_a_copy_equal_to_the_changed_design(tmp
     source.write_bytes(DEMO.read_bytes())
     env = dict(os.environ, QT_QPA_PLATFORM="offscreen", **{RECOVERY_DIR_ENV: str(folder),
                                                          "MOUNTSMITH_AUTOSAVE_SECONDS": "0.5"})
-    code = CRASH_CHILD.format(root=str(ROOT), demo=str(source))
+    code = CRASH_CHILD.format(root=str(ROOT), demo=str(source), install="")
     process = subprocess.Popen([sys.executable, "-c", code], cwd=ROOT, env=env, stdout=subprocess.PIPE,
                                stderr=subprocess.PIPE, text=True)
     try:
-        assert process.stdout.readline().strip() == "changed", process.stderr.read()
+        ready, _, _ = select.select([process.stdout], [], [], 60)
+        assert ready, "the window did not start within 60 s"
+        line = process.stdout.readline().strip()
+        assert line == "changed", line
         deadline = time.monotonic() + 30
         copy = folder / f"recovery-{process.pid}.msproj.json"
         while not copy.exists():
-            assert process.poll() is None, process.stderr.read()
+            assert process.poll() is None, "the window exited before writing a recovery copy"
             assert time.monotonic() < deadline, "no recovery copy within 30 s"
             time.sleep(0.1)
         time.sleep(0.3)
@@ -233,3 +395,78 @@ def test_kill_after_unsaved_change_leaves_a_copy_equal_to_the_changed_design(tmp
     assert design["design"] == expected.to_dict()
     assert source_path == str(source)
     assert source.read_bytes() == DEMO.read_bytes()  # the original file was never touched
+
+
+# ------------------------------------------------------------------ the window side (autosave, restore offer)
+
+ORPHAN_CHILD = """
+import sys
+from core.project import load_project
+from core.recovery import write_recovery
+from core.transmissibility import Damping
+p = load_project('demo_projects/rooftop_air_handler.json')
+p = p.with_design(p.design.with_changes(damping=Damping('viscous', 0.0875), mass_kg=612.0))
+p = type(p)(**{**p.__dict__, 'name': 'renamed before the crash'})
+write_recovery(p, sys.argv[1] if len(sys.argv) > 1 else None)
+"""
+
+
+def _orphan(folder: Path, source) -> None:
+    args = [] if source is None else [str(source)]
+    completed = subprocess.run([sys.executable, "-c", ORPHAN_CHILD, *args], cwd=ROOT, capture_output=True,
+                               text=True, timeout=60, env=dict(os.environ, **{RECOVERY_DIR_ENV: str(folder)}))
+    assert completed.returncode == 0, completed.stderr
+
+
+@pytest.mark.gui
+def test_autosave_writes_while_modified_and_a_save_removes_it(main_window, folder, tmp_path):
+    from app import recovery_prompt
+    source = tmp_path / "fan.msproj.json"
+    source.write_bytes(DEMO.read_bytes())
+    window = main_window(source)
+    autosave = recovery_prompt.install(window, offer=False)
+    own = folder / f"recovery-{os.getpid()}.msproj.json"
+    assert autosave.write_if_modified() is False and not own.exists()      # nothing unsaved yet
+    window.model.set_damping_value(0.0425)
+    assert autosave.write_if_modified() is True
+    assert load_project(own) == window.model.project
+    assert autosave.write_if_modified() is False                         # unchanged since the copy
+    window.model.save()
+    assert not own.exists()                                              # saved: nothing to recover
+    assert source.read_bytes() != DEMO.read_bytes()
+
+
+@pytest.mark.gui
+@pytest.mark.parametrize("answer", [True, False])
+def test_restore_offer_puts_the_copy_back_as_unsaved_changes(main_window, folder, tmp_path, monkeypatch, answer):
+    from app import recovery_prompt
+    source = tmp_path / "fan.msproj.json"
+    source.write_bytes(DEMO.read_bytes())
+    _orphan(folder, source)
+    asked = []
+    monkeypatch.setattr(recovery_prompt, "ask_restore", lambda window, found: asked.append(found) or answer)
+    window = main_window()
+    assert recovery_prompt.offer_restore(window) is answer
+    assert len(asked) == 1 and asked[0].source_path == str(source)
+    assert find_recovery() is None                                        # offered once, then removed
+    if answer:
+        assert window.model.path == str(source)
+        assert window.model.dirty
+        assert window.model.design.damping.value == 0.0875 and window.model.design.mass_kg == 612.0
+        assert window.model.name == "renamed before the crash"
+        assert window.model.undo()                                        # undo goes back to the file
+    else:
+        assert window.model.path is None and not window.model.dirty
+    assert source.read_bytes() == DEMO.read_bytes()
+
+
+@pytest.mark.gui
+def test_restore_without_the_original_file_gives_an_unsaved_new_design(main_window, folder, monkeypatch):
+    from app import recovery_prompt
+    _orphan(folder, None)
+    monkeypatch.setattr(recovery_prompt, "ask_restore", lambda window, found: True)
+    window = main_window()
+    assert recovery_prompt.offer_restore(window)
+    assert window.model.path is None and window.model.dirty
+    assert window.model.design.mass_kg == 612.0
+    assert window.model.name == "renamed before the crash"

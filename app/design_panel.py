@@ -44,6 +44,15 @@ def _error_text(error: InputError) -> str:
     return f"{error.reason}{shown}"
 
 
+def message_label() -> QtWidgets.QLabel:
+    """A hidden, word-wrapped label for a refusal or error message."""
+    label = QtWidgets.QLabel("")
+    label.setWordWrap(True)
+    label.setStyleSheet(FIELD_ERROR_STYLE)
+    label.setVisible(False)
+    return label
+
+
 class FieldRow(QtWidgets.QWidget):
     """An input widget, its unit and, below, the message for a refused value."""
 
@@ -58,10 +67,7 @@ class FieldRow(QtWidgets.QWidget):
         self.unit_label = QtWidgets.QLabel(unit)
         self.unit_label.setMinimumWidth(44)
         layout.addWidget(self.unit_label, 0, 1)
-        self.error_label = QtWidgets.QLabel("")
-        self.error_label.setWordWrap(True)
-        self.error_label.setStyleSheet(FIELD_ERROR_STYLE)
-        self.error_label.setVisible(False)
+        self.error_label = message_label()
         layout.addWidget(self.error_label, 1, 0, 1, 2)
 
     def set_error(self, message: str | None) -> None:
@@ -482,10 +488,7 @@ class OperatingPointControls(QtWidgets.QGroupBox):
         grid.addWidget(self.ratio_label, 2, 0, 1, 2)
         grid.addWidget(self.ratio_slider, 3, 0)
         grid.addWidget(self.ratio_spin, 3, 1)
-        self.message = QtWidgets.QLabel("")
-        self.message.setStyleSheet(FIELD_ERROR_STYLE)
-        self.message.setWordWrap(True)
-        self.message.setVisible(False)
+        self.message = message_label()
         grid.addWidget(self.message, 4, 0, 1, 2)
 
         self.damping_slider.valueChanged.connect(self._damping_slider_moved)

@@ -8,7 +8,8 @@ from __future__ import annotations
 
 from PySide6 import QtCore, QtWidgets
 
-from app.style import CAUTION_STYLE, FIELD_ERROR_STYLE
+from app.design_panel import message_label
+from app.style import CAUTION_STYLE
 from core.cautions import CAUTION_LINE
 from core.design import DesignInputs
 from core.design_model import Evaluation
@@ -87,11 +88,8 @@ class ResultsPanel(QtWidgets.QWidget):
         super().__init__(parent)
         outer = QtWidgets.QVBoxLayout(self)
         outer.setContentsMargins(6, 6, 6, 6)
-        self.error_label = QtWidgets.QLabel("")
+        self.error_label = message_label()
         self.error_label.setObjectName("results_error")
-        self.error_label.setWordWrap(True)
-        self.error_label.setStyleSheet(FIELD_ERROR_STYLE)
-        self.error_label.setVisible(False)
         outer.addWidget(self.error_label)
         self.table = QtWidgets.QWidget()
         form = QtWidgets.QFormLayout(self.table)

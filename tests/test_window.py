@@ -525,3 +525,22 @@ def test_typing_keeps_the_text_as_typed_while_values_apply_live(main_window, qtb
     window.actions["undo"].trigger()  # the name
     window.actions["undo"].trigger()  # the whole mass entry
     assert window.model.design.mass_kg == 500.0 and mass.text() == "500"
+
+
+@pytest.mark.parametrize("kind, field, text", [("balance_grade", "rotor_mass", "100"),
+                                               ("unbalance", "unbalance", "2005")])
+def test_unbalance_and_balance_grade_give_published_force(main_window, qtbot, kind, field, text):
+    """ISO 21940-11 check (REFERENCES.md §3): 100 kg rotor, 3000 r/min, G 6.3 -> U = 2005 g·mm, F = 197.9 N."""
+    window = main_window()
+    panel = window.design_panel
+    paste_into(qtbot, panel.fields["speed"].row.editor, "3000")
+    panel.excitation_combo.setCurrentIndex(panel.excitation_combo.findData(kind))
+    assert panel.excitation_row.error  # refused until its value is typed
+    assert window.model.design.excitation.kind == "none"
+    if kind == "balance_grade":
+        assert panel.grade_row.isVisible()
+        panel.grade_combo.setCurrentIndex(panel.grade_combo.findData(6.3))
+    paste_into(qtbot, panel.fields[field].row.editor, text)
+    settle(qtbot, window)
+    assert window.model.design.excitation.kind == kind and not panel.excitation_row.error
+    assert window.results.value_labels["excitation_force"].text() == "197.9 N"

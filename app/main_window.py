@@ -142,6 +142,11 @@ class MainWindow(QtWidgets.QMainWindow):
         events.path_changed.connect(lambda _path: self._update_title())
         events.dirty_changed.connect(lambda _dirty: self._update_title())
         events.undo_changed.connect(self._update_undo_actions)
+        geometry, state = self.settings.window_layout()
+        if geometry is not None:
+            self.restoreGeometry(geometry)
+        if state is not None:
+            self.restoreState(state)
         self._view_changed(self.model.view)
         self._update_title()
         self._update_undo_actions(self.model.can_undo, self.model.can_redo)
@@ -435,6 +440,7 @@ class MainWindow(QtWidgets.QMainWindow):
     def closeEvent(self, event: QtGui.QCloseEvent) -> None:
         if self.maybe_save():
             self._redraw_timer.stop()
+            self.settings.save_window_layout(self.saveGeometry(), self.saveState())
             self.settings.sync()
             event.accept()
         else:

@@ -49,6 +49,17 @@ class AppSettings:
     def clear_recent_files(self) -> None:
         self._settings.setValue("files/recent", [])
 
+    # window layout
+    def window_layout(self) -> tuple[bytes | None, bytes | None]:
+        """Saved (geometry, dock state) of the main window, or None where never saved."""
+        geometry = self._settings.value("window/geometry")
+        state = self._settings.value("window/state")
+        return (geometry if geometry else None), (state if state else None)
+
+    def save_window_layout(self, geometry, state) -> None:
+        self._settings.setValue("window/geometry", geometry)
+        self._settings.setValue("window/state", state)
+
     def sync(self) -> None:
         self._settings.sync()
 

@@ -544,3 +544,17 @@ def test_unbalance_and_balance_grade_give_published_force(main_window, qtbot, ki
     settle(qtbot, window)
     assert window.model.design.excitation.kind == kind and not panel.excitation_row.error
     assert window.results.value_labels["excitation_force"].text() == "197.9 N"
+
+
+def test_window_layout_and_recent_files_are_remembered(main_window, qtbot, tmp_path):
+    window = main_window()
+    window.resize(1111, 777)
+    path = tmp_path / "one.msproj.json"
+    assert window.save_as(str(path))
+    window.close()
+    again = main_window()
+    geometry, state = AppSettings().window_layout()
+    assert geometry is not None and state is not None
+    assert AppSettings().recent_files[0] == str(path.resolve())
+    again._fill_recent_menu()
+    assert str(path.resolve()) in [action.text() for action in again.recent_menu.actions()]

@@ -23,8 +23,8 @@ from dataclasses import dataclass
 from typing import Literal, Sequence
 
 import numpy as np
-from scipy.integrate import trapezoid
-from scipy.optimize import brentq
+#: Trapezoid rule (numpy >= 2 renamed np.trapz; scipy.integrate costs ~0.4 s to import).
+_trapezoid = getattr(np, "trapezoid", None) or np.trapz
 
 from core.constants import STANDARD_GRAVITY
 from core.errors import InputError, TargetUnreachable
@@ -489,7 +489,7 @@ def _band_factors(band_hz, natural_frequency_hz: float, damping: Damping,
     width = frequency[:, -1] - frequency[:, 0]
 
     def band_rms(values):
-        return np.sqrt(trapezoid(values * values, frequency, axis=-1) / width)
+        return np.sqrt(_trapezoid(values * values, frequency, axis=-1) / width)
 
     return band_rms(transmissibility), band_rms(stroke_per_velocity)
 
@@ -727,6 +727,7 @@ def max_natural_frequency_for_criterion(
     elif values[top] <= 0.0:
         fn, bound = float(grid[top]), "criterion"
     else:
+        from scipy.optimize import brentq  # imported here: scipy.optimize costs ~0.4 s at start-up
         fn, bound = float(brentq(slack, grid[top], grid[top + 1], xtol=1e-13 * grid[top],
                                  rtol=1e-15)), "criterion"
         if slack(fn) < -tolerance:

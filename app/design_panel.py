@@ -178,6 +178,7 @@ class DesignPanel(QtWidgets.QWidget):
 
         # ---- damping
         damping_box, form = self._group("Damping", outer)
+        self.damping_form = form
         self.damping_combo = self._combo("damping_model", (("Viscous (damping ratio ζ)", "viscous"),
                                                            ("Elastomer (loss factor η)", "hysteretic")),
                                          self._damping_model_changed)

@@ -21,13 +21,18 @@ from PySide6 import QtCore, QtGui, QtWidgets  # noqa: E402  (PySide6 before pyqt
 from app.design_panel import DesignPanel, OperatingPointControls  # noqa: E402
 from app.plots import TransmissibilityPlots  # noqa: E402
 from app.results_panel import ResultsPanel  # noqa: E402
+from app.review_sheet import export_review_sheet  # noqa: E402
+from app.studies_panel import default_floor_study  # noqa: E402
+from app.study_tabs import StudyTabs  # noqa: E402
 from app.settings import APPLICATION, ORGANIZATION, AppSettings  # noqa: E402
 from app.style import CAUTION_STYLE  # noqa: E402
 from app import export  # noqa: E402
 from core.cautions import CAUTION_LINE, SAFETY_TITLE, safety_text  # noqa: E402
 from core.design_model import DesignModel  # noqa: E402
 from core.errors import MountsmithError  # noqa: E402
+from core.design import DesignInputs  # noqa: E402
 from core.project import FILE_SUFFIX, Project, ViewSettings  # noqa: E402
+from core.studies import Studies  # noqa: E402
 from core.units import SYSTEM_NAMES, UNIT_SYSTEMS  # noqa: E402
 
 READOUT_HINT = "Point at the plots to read r, |T| and phase"
@@ -36,12 +41,14 @@ PROJECT_FILTER = f"Mountsmith projects (*{FILE_SUFFIX} *.json);;All files (*)"
 #: Menu actions as data: name, menu, text, shortcut.
 ACTIONS = (
     ("new", "File", "&New design", QtGui.QKeySequence.StandardKey.New),
+    ("new_equipment", "File", "New e&quipment design (floor vibration)", None),
     ("open", "File", "&Open…", QtGui.QKeySequence.StandardKey.Open),
     ("save", "File", "&Save", QtGui.QKeySequence.StandardKey.Save),
     ("save_as", "File", "Save &As…", QtGui.QKeySequence.StandardKey.SaveAs),
     ("export_png", "File", "Export plot &image…", "Ctrl+E"),
     ("copy_image", "File", "&Copy plot image", "Ctrl+Shift+C"),
     ("export_csv", "File", "Export curves as CS&V…", None),
+    ("export_review", "File", "Export &review sheet…", None),
     ("quit", "File", "&Quit", QtGui.QKeySequence.StandardKey.Quit),
     ("undo", "Edit", "&Undo", QtGui.QKeySequence.StandardKey.Undo),
     ("redo", "Edit", "&Redo", QtGui.QKeySequence.StandardKey.Redo),
@@ -135,6 +142,8 @@ class MainWindow(QtWidgets.QMainWindow):
         self.view_actions: dict[tuple[str, str], QtGui.QAction] = {}
         self._build_menus()
 
+        self.study_tabs = StudyTabs(self)
+
         events = self.model.events
         events.design_changed.connect(self._design_changed)
         events.view_changed.connect(self._view_changed)
@@ -172,7 +181,8 @@ class MainWindow(QtWidgets.QMainWindow):
     def _build_menus(self) -> None:
         menus = {}
         handlers = {
-            "new": self.new_design, "open": lambda: self.open_file(), "save": self.save,
+            "new": self.new_design, "new_equipment": self.new_equipment_design,
+            "export_review": lambda: self.export_review_sheet(), "open": lambda: self.open_file(), "save": self.save,
             "save_as": lambda: self.save_as(), "export_png": lambda: self.export_png(),
             "copy_image": self.copy_image, "export_csv": lambda: self.export_csv(),
             "quit": self.close, "undo": self.model.undo, "redo": self.model.redo,
@@ -192,7 +202,7 @@ class MainWindow(QtWidgets.QMainWindow):
             self.actions[name] = action
             if name == "open":
                 menus[menu].addMenu(self.recent_menu)
-            if name in ("save_as", "export_csv"):
+            if name in ("save_as", "export_review"):
                 menus[menu].addSeparator()
         for field, title, choices in VIEW_CHOICES:
             submenu = menus["View"].addMenu(title)
@@ -261,6 +271,7 @@ class MainWindow(QtWidgets.QMainWindow):
         self.operating.refresh()
         self.plots.show_design(self.model.design, evaluation, self.model.view)
         self.results.show_evaluation(self.model.design, evaluation, self.model.view.units)
+        self.study_tabs.schedule()
         self.redraw_count += 1
 
     def _show_readout(self, value) -> None:
@@ -319,6 +330,17 @@ class MainWindow(QtWidgets.QMainWindow):
         if not self.maybe_save():
             return False
         self.model.new(Project(view=ViewSettings(units=self.settings.units)))
+        return True
+
+    def new_equipment_design(self) -> bool:
+        """A new sensitive-equipment project: natural frequency chosen directly, a floor study on a flat floor."""
+        if not self.maybe_save():
+            return False
+        self.model.new(Project(name="Untitled equipment design", kind="equipment",
+                               design=DesignInputs(tuning="natural_frequency", natural_frequency_hz=3.0),
+                               studies=Studies(floor=default_floor_study()),
+                               view=ViewSettings(units=self.settings.units)))
+        self.tabs.setCurrentWidget(self.study_tabs.floor)
         return True
 
     def open_file(self, path: str | None = None) -> bool:
@@ -424,6 +446,22 @@ class MainWindow(QtWidgets.QMainWindow):
         except MountsmithError as error:
             self.show_error("Cannot export curves", str(error))
             return False
+        return True
+
+    def export_review_sheet(self, path: str | None = None) -> bool:
+        """Write the design-review sheet (A4 PDF) of the project; errors go to :meth:`show_error`."""
+        if path is None:
+            suggestion = str(Path(self._folder()) / (self._safe_name() + "_review.pdf"))
+            path = self.choose_save_path("Export review sheet", suggestion, "PDF (*.pdf)")
+        if not path:
+            return False
+        source = Path(self.model.path).name if self.model.path else None
+        try:
+            export_review_sheet(self.model.project, path, source)
+        except MountsmithError as error:
+            self.show_error("Cannot export review sheet", str(error))
+            return False
+        self.statusBar().showMessage(f"Wrote {path}", 4000)
         return True
 
     # ------------------------------------------------------------------ help

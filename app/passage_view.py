@@ -84,7 +84,8 @@ class PassageView(QtWidgets.QWidget):
         self.force_curve.setData(speed, result.force_envelope_n)
         self.steady_force_curve.setData(speed, result.steady_force_envelope_n)
         self.force_peak.setData([result.peak_force_speed_rpm], [result.peak_force_n])
-        title = (f"{_DIRECTION_TITLES[result.direction]} to {result.operating_speed_rpm:.4g} r/min; "
+        word = "to" if result.direction == "up" else "from"
+        title = (f"{_DIRECTION_TITLES[result.direction]} {word} {result.operating_speed_rpm:.4g} r/min; "
                  f"fn = {result.natural_frequency_hz:.3g} Hz, ζ = {result.damping_ratio:.3g}")
         self.displacement_plot.setTitle(title, color=PALETTE["foreground"])
         for plot in (self.displacement_plot, self.force_plot):

@@ -363,6 +363,38 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         else:
             left.setTicks([[(v, f"{v:g}") for v in range(-60, 41, 20)], []])
 
+    def show_comparison(self, curve) -> None:
+        """Draw a :class:`core.curves.Curve` dashed beside the design (None hides it).
+
+        Call after :meth:`show_design`: it uses the axes set there. The items are made on first use.
+        """
+        if getattr(self, "comparison_magnitude", None) is None:
+            if curve is None:
+                return
+            pen = self._pen("design", QtCore.Qt.PenStyle.DashLine)
+            pen.setColor(QtGui.QColor(PALETTE["target"]))
+            self.comparison_magnitude = self.magnitude_plot.plot(pen=pen)
+            self.comparison_phase = self.phase_plot.plot(pen=pen)
+            for item in (self.comparison_magnitude, self.comparison_phase):
+                item.setZValue(9)
+            self._comparison_label = None
+        if curve is None:
+            for item in (self.comparison_magnitude, self.comparison_phase):
+                item.setData([], [])
+            if self._comparison_label is not None:
+                self.legend.removeItem(self.comparison_magnitude)
+                self._comparison_label = None
+            return
+        x = frequency_axis(curve.ratio, self._x_axis or "ratio", self._natural_frequency_hz)
+        self.comparison_magnitude.setData(x, magnitude_on_scale(curve.magnitude, self._magnitude_scale or "ratio"))
+        self.comparison_phase.setData(x, curve.phase_deg)
+        label = f"{curve.label} (equal peak)"
+        if label != self._comparison_label:
+            if self._comparison_label is not None:
+                self.legend.removeItem(self.comparison_magnitude)
+            self.legend.addItem(self.comparison_magnitude, label)
+            self._comparison_label = label
+
     # ------------------------------------------------------------------ crosshair
     def _mouse_moved(self, position) -> None:
         inside = None

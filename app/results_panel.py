@@ -63,7 +63,8 @@ def result_texts(design: DesignInputs, evaluation: Evaluation, system: str) -> d
     if result.duty_points:
         texts["duty"] = "\n".join(
             f"{format_value(point.speed_rpm, 'speed', system)}: |T| {point.transmissibility:.4g}, "
-            f"isolation {point.isolation_percent:.4g} %" for point in result.duty_points)
+            f"isolation {point.isolation_percent:.4g} %, r {point.frequency_ratio:.4g}"
+            for point in result.duty_points)
     if result.excitation_force_n is not None:
         texts.update({
             "excitation_force": format_value(result.excitation_force_n, "force", system),
@@ -109,6 +110,21 @@ class ResultsPanel(QtWidgets.QWidget):
             self.value_labels[key] = value
             self.row_labels[key] = label
         outer.addWidget(self.table)
+        self.study_title = QtWidgets.QLabel("<b>Studies</b>")
+        outer.addWidget(self.study_title)
+        self.study_table = QtWidgets.QWidget()
+        self.study_form = QtWidgets.QFormLayout(self.study_table)
+        self.study_form.setContentsMargins(0, 0, 0, 0)
+        self.study_form.setVerticalSpacing(4)
+        self.study_form.setRowWrapPolicy(QtWidgets.QFormLayout.RowWrapPolicy.WrapLongRows)
+        self.study_form.setFieldGrowthPolicy(QtWidgets.QFormLayout.FieldGrowthPolicy.AllNonFixedFieldsGrow)
+        outer.addWidget(self.study_table)
+        self.study_title.setVisible(False)
+        self.study_table.setVisible(False)
+        self.study_value_labels: dict[str, QtWidgets.QLabel] = {}
+        self._study_rows: list = []
+        self._design_warnings: tuple = ()
+        self._study_warnings: tuple = ()
         warnings_title = QtWidgets.QLabel("<b>Warnings</b>")
         outer.addWidget(warnings_title)
         self.warnings_label = QtWidgets.QLabel("none")
@@ -133,7 +149,8 @@ class ResultsPanel(QtWidgets.QWidget):
         self.error_label.setVisible(False)
         self.table.setVisible(True)
         texts = result_texts(design, evaluation, system)
-        ranged = evaluation.result.speeds_rpm[1] > evaluation.result.speeds_rpm[0]
+        ranged = (evaluation.result.speeds_rpm[1] > evaluation.result.speeds_rpm[0]
+                  or bool(evaluation.result.duty_points))  # the worst case covers the duty speeds too
         for key, label in self.value_labels.items():
             visible = key in texts and (key != "worst" or ranged)
             label.setVisible(visible)
@@ -142,5 +159,28 @@ class ResultsPanel(QtWidgets.QWidget):
                 label.setText(texts[key])
         self.row_labels["damping"].setText(
             "Damping per mount" + ("\n(equivalent viscous)" if evaluation.result.damping_is_equivalent else ""))
-        warnings = evaluation.result.warnings
+        self._design_warnings = tuple(evaluation.result.warnings)
+        self._show_warnings()
+
+    def show_studies(self, rows, warnings) -> None:
+        """Rows ``(label, text)`` of the project's studies and their warnings (from core)."""
+        rows = [tuple(row) for row in rows]
+        if rows != self._study_rows:
+            self._study_rows = rows
+            while self.study_form.rowCount():
+                self.study_form.removeRow(0)
+            self.study_value_labels = {}
+            for label, text in rows:
+                value = QtWidgets.QLabel(text)
+                value.setWordWrap(True)
+                value.setTextInteractionFlags(QtCore.Qt.TextInteractionFlag.TextSelectableByMouse)
+                self.study_form.addRow(QtWidgets.QLabel(label), value)
+                self.study_value_labels[label] = value
+        self.study_title.setVisible(bool(rows))
+        self.study_table.setVisible(bool(rows))
+        self._study_warnings = tuple(warnings)
+        self._show_warnings()
+
+    def _show_warnings(self) -> None:
+        warnings = self._design_warnings + self._study_warnings
         self.warnings_label.setText("\n".join(f"• {w}" for w in warnings) if warnings else "none")

@@ -366,15 +366,29 @@ class FloorStudy:
         return study
 
 
-def evaluate_floor(design: DesignInputs, result: DesignResult, study: FloorStudy) -> dict:
-    """Keys ``criterion*``, ``floor_*``: equipment velocity per band against the criterion."""
+def floor_check(design: DesignInputs, result: DesignResult, study: FloorStudy):
+    """The criterion check of a floor study and the highest natural frequency meeting it.
+
+    Returns ``(check, limit, note)``: a :class:`core.floor.CriterionCheck` at the
+    design's natural frequency, the :class:`core.floor.NaturalFrequencyLimit`
+    (None when no natural frequency meets the criterion) and the reason then (else None).
+    """
     spectrum = study.spectrum()
-    damping_kw = ({"damping_ratio": design.damping.value} if design.damping.model == "viscous"
-                  else {"loss_factor": design.damping.value})
     if design.damping.value <= 0.0:
         raise InputError("design.damping.value", "must be > 0 for a floor-vibration study (an undamped "
                          "mount responds without bound at resonance)", design.damping.value)
+    damping_kw = ({"damping_ratio": design.damping.value} if design.damping.model == "viscous"
+                  else {"loss_factor": design.damping.value})
     check = floor_module.check_criterion(spectrum, study.criterion, result.natural_frequency_hz, **damping_kw)
+    try:
+        return check, floor_module.max_natural_frequency_for_criterion(spectrum, study.criterion, **damping_kw), None
+    except TargetUnreachable as error:
+        return check, None, str(error)
+
+
+def evaluate_floor(design: DesignInputs, result: DesignResult, study: FloorStudy) -> dict:
+    """Keys ``criterion*``, ``floor_*``: equipment velocity per band against the criterion."""
+    check, best, note = floor_check(design, result, study)
     values = {
         "criterion": study.criterion,
         "criterion_pass": bool(check.passed),
@@ -387,14 +401,13 @@ def evaluate_floor(design: DesignInputs, result: DesignResult, study: FloorStudy
         "criterion_margin_db": [float(v) for v in check.margin_db],
         "mount_stroke_rms_mm": [float(v) * 1e3 for v in check.prediction.stroke_rms_m],
     }
-    try:
-        best = floor_module.max_natural_frequency_for_criterion(spectrum, study.criterion, **damping_kw)
+    if best is not None:
         values["max_natural_frequency_for_criterion_hz"] = float(best.natural_frequency_hz)
         values["max_natural_frequency_static_deflection_mm"] = float(best.static_deflection_m) * 1e3
-    except TargetUnreachable as error:
+    else:
         values["max_natural_frequency_for_criterion_hz"] = None
         values["max_natural_frequency_static_deflection_mm"] = None
-        values["criterion_note"] = str(error)
+        values["criterion_note"] = note
     return values
 
 
@@ -457,6 +470,89 @@ def evaluate_two_stage(design: DesignInputs, result: DesignResult, study: TwoSta
     }
 
 
+@dataclass(frozen=True)
+class TwoStageCurves:
+    """Force transmissibility of both arrangements against frequency.
+
+    Attributes
+    ----------
+    frequency_hz : ndarray
+        Log-spaced forcing frequencies (Hz), from a third of the lower natural
+        frequency to three times the highest operating speed.
+    two_stage : ndarray
+        |T| of the machine on the intermediate mass on the lower mounts.
+    single_stage : ndarray
+        |T| of the machine on its mounts directly on the ground.
+    speed_hz : float
+        Lowest operating speed (Hz), where :func:`evaluate_two_stage` compares them.
+    """
+
+    frequency_hz: np.ndarray
+    two_stage: np.ndarray
+    single_stage: np.ndarray
+    speed_hz: float
+
+
+def two_stage_curves(design: DesignInputs, result: DesignResult, study: TwoStageStudy,
+                     points: int = 400) -> TwoStageCurves:
+    """|T| of the two-stage system and of the single stage over frequency (core.two_stage)."""
+    system = build_two_stage(design, result, study)
+    speed_hz = result.speeds_rpm[0] / 60.0
+    low = min(study.lower_natural_frequency_hz, result.natural_frequency_hz) / 3.0
+    high = max(result.speeds_rpm[1] / 60.0, result.natural_frequency_hz) * 3.0
+    frequency = np.geomspace(low, high, int(points))
+    omega = 2.0 * np.pi * frequency
+    with np.errstate(divide="ignore", invalid="ignore"):  # an undamped resonance on the grid -> inf
+        two = np.abs(two_stage.two_stage_transmissibility(system, omega))
+        one = np.abs(two_stage.single_stage_transmissibility(system, omega))
+    return TwoStageCurves(frequency, two, one, speed_hz)
+
+
+# ----------------------------------------------------------- design map
+#: Run-up time of the design map's passage estimate when the project has no passage study (s).
+DEFAULT_MAP_RUNUP_S = 10.0
+
+
+def design_map_of(design: DesignInputs, result: DesignResult | None, passage_study: PassageStudy | None = None,
+                  points: int = 160):
+    """The :func:`core.design_map.design_map` of a design at its lowest speed, with its limits.
+
+    Limits: the target isolation, the largest static deflection and passage
+    amplification of ``design.limits``; the design's dynamic-to-static
+    ratio; the run-up of the passage study (else :data:`DEFAULT_MAP_RUNUP_S`).
+    The natural-frequency axis spans from a 30th of the speed to the speed
+    (and covers the design's natural frequency); damping 0.005 to 1.
+    """
+    from core.design_map import FREQUENCY_LIMITS_HZ, MapLimits, design_map
+
+    speed_hz = design.speed_rpm / 60.0
+    low, high = speed_hz / 30.0, speed_hz
+    if result is not None:
+        low = min(low, result.natural_frequency_hz / 1.5)
+        high = max(high, result.natural_frequency_hz * 1.5)
+    low = max(low, FREQUENCY_LIMITS_HZ[0])
+    high = min(max(high, low * 2.0), FREQUENCY_LIMITS_HZ[1])
+    limits = MapLimits(min_isolation_percent=design.isolation_percent,
+                       max_static_deflection_mm=design.limits.max_static_deflection_mm,
+                       max_passage_amplification=design.limits.max_passage_amplification)
+    return design_map(design.speed_rpm, natural_frequency_range_hz=(low, high), damping_ratio_range=(0.005, 1.0),
+                      frequency_points=points, damping_points=points,
+                      dynamic_to_static_ratio=design.dynamic_stiffness_ratio,
+                      ramp_s=passage_study.runup_s if passage_study is not None else DEFAULT_MAP_RUNUP_S,
+                      limits=limits)
+
+
+def design_at_map_point(design: DesignInputs, natural_frequency_hz: float, damping_ratio: float) -> DesignInputs:
+    """The design moved to a point of its design map: tuning by the frequency ratio
+    r = (lowest speed) / fn and viscous damping ``damping_ratio``; validated (InputError names the field)."""
+    if not (math.isfinite(natural_frequency_hz) and natural_frequency_hz > 0.0):
+        raise InputError("tuning.natural_frequency_hz", "must be a number above 0 Hz", natural_frequency_hz)
+    ratio = float(rpm_to_rad_s(design.speed_rpm)) / (2.0 * math.pi * natural_frequency_hz)
+    from core.transmissibility import Damping
+    return design.with_changes(tuning="frequency_ratio", frequency_ratio=ratio,
+                               damping=Damping("viscous", float(damping_ratio))).validate()
+
+
 # ------------------------------------------------------------- container
 @dataclass(frozen=True)
 class Studies:
@@ -509,4 +605,4 @@ class Studies:
 
 __all__ = ["Studies", "PassageStudy", "RigidBodyStudy", "MountPlacement", "FloorStudy", "TwoStageStudy",
            "default_rigid_body_study", "build_rigid_body", "build_two_stage", "simulate_passages",
-           "unbalance_of"]
+           "unbalance_of", "floor_check", "two_stage_curves", "TwoStageCurves", "design_map_of", "design_at_map_point"]

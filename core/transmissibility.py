@@ -280,3 +280,33 @@ def loss_factor_with_same_peak(damping_ratio: float) -> float:
                          damping_ratio)
     height = transmissibility_peak(Damping("viscous", damping_ratio)).magnitude
     return float(1.0 / np.sqrt(height * height - 1.0))
+
+
+def damping_with_same_peak(damping: Damping) -> Damping:
+    """The other damping model with the same resonance peak height of |T|.
+
+    Viscous zeta -> loss factor (:func:`loss_factor_with_same_peak`);
+    hysteretic eta -> the viscous ratio whose exact peak equals sqrt(1 + eta**2) / eta
+    (found with ``scipy.optimize.brentq``; the viscous peak falls as zeta grows).
+
+    Raises
+    ------
+    InputError
+        Without damping, or for a loss factor whose peak no viscous ratio up to
+        ``MAX_DAMPING`` reaches.
+    """
+    from scipy.optimize import brentq
+
+    if damping.model == "viscous":
+        return Damping("hysteretic", loss_factor_with_same_peak(damping.value))
+    eta = damping.value
+    if not eta > 0.0:
+        raise InputError("damping.loss_factor", f"must be above 0 and up to {MAX_DAMPING:g}", eta)
+    height = transmissibility_peak(damping).magnitude
+    lowest = transmissibility_peak(Damping("viscous", MAX_DAMPING)).magnitude
+    if height <= lowest:
+        raise InputError("damping.loss_factor", f"gives a peak of {height:.4g}, lower than any viscous "
+                         f"damping ratio up to {MAX_DAMPING:g} reaches", eta)
+    zeta = brentq(lambda z: transmissibility_peak(Damping("viscous", z)).magnitude - height,
+                  1e-9, MAX_DAMPING, xtol=1e-14, rtol=1e-12)
+    return Damping("viscous", float(zeta))

@@ -215,10 +215,15 @@ def transmissibility_peak(damping: Damping) -> Peak:
     value = damping.value
     if value == 0.0:
         return Peak(1.0, float("inf"))
-    if damping.model == "hysteretic":
-        return Peak(1.0, float(np.sqrt(1.0 + value * value) / value))
-    ratio = float(np.sqrt(np.sqrt(1.0 + 8.0 * value * value) - 1.0) / (2.0 * value))
-    return Peak(ratio, float(np.abs(viscous_transmissibility(ratio, value))))
+    with np.errstate(over="ignore", divide="ignore", invalid="ignore"):  # vanishing damping: unbounded
+        if damping.model == "hysteretic":
+            magnitude = float(np.sqrt(1.0 + value * value) / value)
+            ratio = 1.0
+        else:
+            # The same r_peak written without the cancellation sqrt(1 + 8 zeta**2) - 1 at small zeta.
+            ratio = float(np.sqrt(2.0 / (1.0 + np.sqrt(1.0 + 8.0 * value * value))))
+            magnitude = float(np.abs(viscous_transmissibility(ratio, value)))
+    return Peak(ratio, magnitude if np.isfinite(magnitude) else float("inf"))
 
 
 def required_ratio(target_transmissibility: float, damping: Damping,

@@ -114,7 +114,7 @@ class MainWindow(QtWidgets.QMainWindow):
         left_layout.setContentsMargins(0, 0, 0, 0)
         left_layout.addWidget(self.operating)
         left_layout.addWidget(scroll, 1)
-        left.setMinimumWidth(330)
+        left.setMinimumWidth(372)  # the design fields with their units
         self.design_dock = self.add_panel(left, "Design", QtCore.Qt.DockWidgetArea.LeftDockWidgetArea)
 
         # ---- right dock: results

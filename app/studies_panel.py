@@ -111,27 +111,53 @@ def _note(text: str = "") -> QtWidgets.QLabel:
     return label
 
 
+class _RowLayout(QtWidgets.QHBoxLayout):
+    """A one-line form: ``addRow(label, widget)`` puts the label and the widget side by side."""
+
+    def addRow(self, label, widget=None) -> None:  # noqa: N802  (the QFormLayout name)
+        if widget is None:
+            label, widget = None, label
+        if label is not None:
+            self.addWidget(QtWidgets.QLabel(label) if isinstance(label, str) else label)
+        if isinstance(widget, QtWidgets.QLayout):
+            self.addLayout(widget)
+        else:
+            self.addWidget(widget)
+
+
 class StudyEditor(QtWidgets.QWidget):
-    """Base of the study editors: an enable box, fields, the core's refusal message."""
+    """Base of the study editors: an enable box, fields, the core's refusal message.
+
+    ``compact`` lays everything out on one line (an editor above a wide view).
+    """
 
     study_name = ""
     title = ""
 
-    def __init__(self, model: DesignModel, parent=None):
+    def __init__(self, model: DesignModel, parent=None, compact: bool = False):
         super().__init__(parent)
         self.model = model
         self.units = model.view.units
         self.fields: dict[str, StudyField] = {}
-        self.layout_ = QtWidgets.QVBoxLayout(self)
-        self.layout_.setContentsMargins(4, 4, 4, 4)
+        self.compact = compact
+        outer = QtWidgets.QVBoxLayout(self)
+        outer.setContentsMargins(4, 4, 4, 4)
+        self.layout_ = _RowLayout() if compact else outer
+        if compact:
+            outer.addLayout(self.layout_)
         self.enable_check = QtWidgets.QCheckBox(self.title)
         self.enable_check.setObjectName(f"enable_{self.study_name}")
         self.enable_check.toggled.connect(self._enable_toggled)
         self.layout_.addWidget(self.enable_check)
-        self.box, self.form = _form_group("Inputs")
+        if compact:
+            self.box = QtWidgets.QWidget()
+            self.form = _RowLayout(self.box)
+            self.form.setContentsMargins(12, 0, 0, 0)
+        else:
+            self.box, self.form = _form_group("Inputs")
         self.layout_.addWidget(self.box)
         self.message = message_label()
-        self.layout_.addWidget(self.message)
+        outer.addWidget(self.message)
 
     @property
     def study(self):
@@ -167,6 +193,28 @@ class StudyEditor(QtWidgets.QWidget):
         self.fields[key] = field
         return field
 
+    def add_triplet(self, key: str, label: str, kind: str | None, change: Callable[[object, int, float], object],
+                    unit: str = "", tooltip: str = "") -> list[StudyField]:
+        """Three fields on one row (x, y, z); ``change(study, index, value)`` gives the new study."""
+        row = QtWidgets.QWidget()
+        line = QtWidgets.QHBoxLayout(row)
+        line.setContentsMargins(0, 0, 0, 0)
+        line.setSpacing(3)
+        fields = []
+        for index, axis in enumerate(AXES):
+            def apply(value, i=index, name=f"{key}_{axis}"):
+                set_study(self.model, self.study_name, change(self.study, i, value), merge_key=f"study.{name}")
+            field = StudyField(f"{key}_{axis}", kind, apply, unit if index == 2 else "",
+                               tooltip=f"{tooltip} ({axis})".strip())
+            field.editor.setPlaceholderText(axis)
+            if index < 2:
+                field.unit_label.setMinimumWidth(0)
+            line.addWidget(field, 1)
+            self.fields[f"{key}_{axis}"] = field
+            fields.append(field)
+        self.form.addRow(label, row)
+        return fields
+
     def refresh(self) -> None:
         """Show the model's study (signals blocked)."""
         self.units = self.model.view.units
@@ -187,18 +235,22 @@ class PassageEditor(StudyEditor):
     study_name = "passage"
     title = "Simulate start and stop"
 
-    def __init__(self, model: DesignModel, parent=None):
-        super().__init__(model, parent)
+    def __init__(self, model: DesignModel, parent=None, compact: bool = False):
+        super().__init__(model, parent, compact)
         self.add_field("runup", "Run-up time", None, lambda s, v: replace(s, runup_s=v), "s",
                        "From rest to the lowest operating speed")
         self.add_field("rundown", "Coast-down time", None, lambda s, v: replace(s, rundown_s=v), "s",
                        "From the lowest operating speed to rest")
-        limits_box, limits_form = _form_group("Limit (design)")
         self.limit_field = StudyField("max_passage_amplification", None, self._limit_edited, "×",
-                                      tooltip="Warn when the motion passing resonance exceeds this many times "
-                                              "the steady motion at speed (10, common practice)")
-        limits_form.addRow("Largest passage amplification", self.limit_field)
-        self.layout_.insertWidget(2, limits_box)
+                                      tooltip="Design limit: warn when the motion passing resonance exceeds this "
+                                              "many times the steady motion at speed (10, common practice)")
+        if compact:
+            self.layout_.addSpacing(16)
+            self.layout_.addRow("Passage limit (design)", self.limit_field)
+        else:
+            limits_box, limits_form = _form_group("Limit (design)")
+            limits_form.addRow("Largest passage amplification", self.limit_field)
+            self.layout_.insertWidget(2, limits_box)
         self.layout_.addStretch(1)
         self.refresh()
 
@@ -266,23 +318,20 @@ class RigidBodyEditor(StudyEditor):
 
     def __init__(self, model: DesignModel, parent=None):
         super().__init__(model, parent)
-        for index, axis in enumerate(AXES):
-            self.add_field(f"cg_{axis}", f"CG {axis}", "length",
-                           lambda s, v, i=index: replace(s, cg_m=_with(s.cg_m, i, v)))
+        self.add_triplet("cg", "CG x, y, z", "length", lambda s, i, v: replace(s, cg_m=_with(s.cg_m, i, v)),
+                         tooltip="Centre of gravity in the machine frame; z is up from the mounts' reference")
         self.inertia_combo = QtWidgets.QComboBox()
         self.inertia_combo.setObjectName("inertia_source")
         self.inertia_combo.addItem("Estimate from a box (uniform)", "box")
         self.inertia_combo.addItem("Principal moments given", "given")
         self.inertia_combo.currentIndexChanged.connect(self._inertia_source_changed)
         self.form.addRow("Inertia", self.inertia_combo)
-        for index, (axis, word) in enumerate(zip(AXES, ("length", "width", "height"))):
-            self.add_field(f"box_{axis}", f"Box {word} ({axis})", "length",
-                           lambda s, v, i=index: replace(s, box_m=_with(s.box_m, i, v)),
-                           tooltip="Outer size of the machine for the inertia estimate")
-        for index, axis in enumerate(AXES):
-            self.add_field(f"inertia_{axis}", f"I{axis}{axis} about CG", None,
-                           lambda s, v, i=index: replace(s, inertia_kg_m2=_diagonal_with(s.inertia_kg_m2, i, v)),
-                           unit="kg·m²")
+        self.add_triplet("box", "Box length, width, height", "length",
+                         lambda s, i, v: replace(s, box_m=_with(s.box_m, i, v)),
+                         tooltip="Outer size of the machine for the inertia estimate (a uniform box)")
+        self.add_triplet("inertia", "Ixx, Iyy, Izz about CG", None,
+                         lambda s, i, v: replace(s, inertia_kg_m2=_diagonal_with(s.inertia_kg_m2, i, v)),
+                         unit="kg·m²", tooltip="Principal moments of inertia about axes through the CG")
         self.add_field("lateral_ratio", "Lateral / vertical stiffness", None,
                        lambda s, v: replace(s, lateral_stiffness_ratio=v),
                        tooltip="For mounts without their own kx, ky, kz")
@@ -295,14 +344,16 @@ class RigidBodyEditor(StudyEditor):
                                                    replace(self.study, shaft_axis=self.axis_combo.currentData()))))
         self.form.addRow("Shaft axis", self.axis_combo)
 
-        self.mounts_box = QtWidgets.QGroupBox("Mounts (empty stiffness: from the design)")
+        self.mounts_box = QtWidgets.QGroupBox("Mounts")
         inner = QtWidgets.QVBoxLayout(self.mounts_box)
         inner.setContentsMargins(4, 4, 4, 4)
+        inner.addWidget(_note("Position of each mount's elastic centre; stiffness along its axes, "
+                              "empty: from the design (vertical) and the lateral ratio."))
         self.mount_table = QtWidgets.QTableWidget(0, len(MOUNT_COLUMNS))
         self.mount_table.setObjectName("mount_table")
         self.mount_table.verticalHeader().setDefaultSectionSize(22)
         self.mount_table.horizontalHeader().setSectionResizeMode(QtWidgets.QHeaderView.ResizeMode.Stretch)
-        self.mount_table.setMinimumHeight(150)
+        self.mount_table.setMinimumHeight(110)
         self.mount_table.itemChanged.connect(self._cell_edited)
         inner.addWidget(self.mount_table)
         self.reset_button = QtWidgets.QPushButton("Reset layout from the design")
@@ -311,7 +362,11 @@ class RigidBodyEditor(StudyEditor):
         self.reset_button.clicked.connect(lambda: self._try(
             lambda: set_study(self.model, "rigid_body", default_rigid_body_study(self.model.design))))
         inner.addWidget(self.reset_button)
-        self.layout_.insertWidget(2, self.mounts_box)
+        columns = QtWidgets.QHBoxLayout()      # inputs beside the mount table
+        self.layout_.removeWidget(self.box)
+        columns.addWidget(self.box, 1)
+        columns.addWidget(self.mounts_box, 1)
+        self.layout_.insertLayout(1, columns)
         self.layout_.addStretch(1)
         #: Per-mount stiffness (N/m) the core uses now, set by the rigid-body tab (typing fills from it).
         self.current_stiffness: list | None = None
@@ -386,7 +441,7 @@ class RigidBodyEditor(StudyEditor):
         table = self.mount_table
         with signals_blocked(table):
             table.setRowCount(len(study.mounts))
-            table.setHorizontalHeaderLabels([f"{name} ({unit_symbol(kind, self.units)})"
+            table.setHorizontalHeaderLabels([f"{name}\n{unit_symbol(kind, self.units)}"
                                              for name, kind, _ in MOUNT_COLUMNS])
             table.setVerticalHeaderLabels([str(i + 1) for i in range(len(study.mounts))])
             for row, placement in enumerate(study.mounts):
@@ -522,15 +577,18 @@ class MaterialEditor(QtWidgets.QWidget):
         for material in MOUNT_MATERIALS:
             self.combo.addItem(material.name, material.name)
             self.combo.setItemData(self.combo.count() - 1, material.source, QtCore.Qt.ItemDataRole.ToolTipRole)
+        self.combo.setSizeAdjustPolicy(QtWidgets.QComboBox.SizeAdjustPolicy.AdjustToMinimumContentsLengthWithIcon)
+        self.combo.setMinimumContentsLength(10)
         self.combo.currentIndexChanged.connect(self._picked)
         layout.addWidget(self.combo)
         self.note = _note("")
         self.note.setObjectName("material_note")
         self.note.setStyleSheet(CAUTION_STYLE)
         layout.addWidget(self.note)
-        self.compare_check = QtWidgets.QCheckBox("Compare viscous and elastomer at equal peak")
+        self.compare_check = QtWidgets.QCheckBox("Compare at equal peak")
         self.compare_check.setObjectName("compare_models")
-        self.compare_check.setToolTip("Draws the other damping model with the same resonance peak, dashed")
+        self.compare_check.setToolTip("Draws the other damping model (viscous or elastomer) with the same "
+                                      "resonance peak, dashed")
         layout.addWidget(self.compare_check)
         self.refresh()
 

@@ -15,6 +15,7 @@ the plots at once and the studies when it pauses). Only the shown tab is drawn.
 """
 from __future__ import annotations
 
+import math
 import os
 
 os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
@@ -43,14 +44,24 @@ STUDY_DELAY_MS = 120
 EDITOR_WIDTH = 330
 
 
-def _scrolled(widget: QtWidgets.QWidget, width: int = EDITOR_WIDTH) -> QtWidgets.QScrollArea:
+def _scrolled(widget: QtWidgets.QWidget, width: int | None = EDITOR_WIDTH) -> QtWidgets.QScrollArea:
+    """``widget`` in a frameless scroll area; with ``width``, an editor column that scrolls vertically only."""
     scroll = QtWidgets.QScrollArea()
     scroll.setWidgetResizable(True)
     scroll.setWidget(widget)
     scroll.setFrameShape(QtWidgets.QFrame.Shape.NoFrame)
-    scroll.setHorizontalScrollBarPolicy(QtCore.Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
-    scroll.setFixedWidth(width)
+    if width is not None:
+        scroll.setHorizontalScrollBarPolicy(QtCore.Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        scroll.setMinimumWidth(width)
     return scroll
+
+
+def log_ticks(low: float, high: float) -> list:
+    """Tick spec of a log10 axis from ``low`` to ``high``: 1, 2, 5 per decade labelled, the rest faint."""
+    decades = range(math.floor(math.log10(low)) - 1, math.ceil(math.log10(high)) + 1)
+    major = [(math.log10(m * 10.0 ** e), f"{m * 10.0 ** e:g}") for e in decades for m in (1, 2, 5)]
+    minor = [(math.log10(m * 10.0 ** e), "") for e in decades for m in (3, 4, 6, 7, 8, 9)]
+    return [major, minor]
 
 
 def _label(text: str = "", name: str | None = None) -> QtWidgets.QLabel:
@@ -65,11 +76,12 @@ def _label(text: str = "", name: str | None = None) -> QtWidgets.QLabel:
 class StudyTab(QtWidgets.QWidget):
     """An editor column on the left, the study's view on the right, a message above the view."""
 
-    def __init__(self, editor: QtWidgets.QWidget, parent=None):
+    def __init__(self, editor: QtWidgets.QWidget, parent=None, editor_on_top: bool = False,
+                 editor_below: bool = False):
         super().__init__(parent)
         self.editor = editor
         self.side = QtWidgets.QWidget()
-        self.side_layout = QtWidgets.QVBoxLayout(self.side)
+        self.side_layout = QtWidgets.QHBoxLayout(self.side) if editor_below else QtWidgets.QVBoxLayout(self.side)
         self.side_layout.setContentsMargins(0, 0, 0, 0)
         self.side_layout.addWidget(editor)
         self.content = QtWidgets.QWidget()
@@ -80,10 +92,30 @@ class StudyTab(QtWidgets.QWidget):
         self.content_layout.addWidget(self.message)
         self.off_label = _label("", "study_off")
         self.content_layout.addWidget(self.off_label)
-        layout = QtWidgets.QHBoxLayout(self)
+        content = _scrolled(self.content, None)   # a narrow window scrolls the view, never widens
+        layout = QtWidgets.QVBoxLayout(self)
         layout.setContentsMargins(2, 2, 2, 2)
-        layout.addWidget(_scrolled(self.side))
-        layout.addWidget(self.content, 1)
+        if editor_on_top:
+            top = _scrolled(self.side, None)
+            top.setVerticalScrollBarPolicy(QtCore.Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+            top.setFixedHeight(self.side.sizeHint().height() + 18)
+            layout.addWidget(top)
+            layout.addWidget(content, 1)
+            return
+        if editor_below:   # a wide view over a wide editor, the user moves the border
+            self.splitter = QtWidgets.QSplitter(QtCore.Qt.Orientation.Vertical)
+            self.splitter.addWidget(content)
+            self.splitter.addWidget(_scrolled(self.side, None))
+            self.splitter.setStretchFactor(0, 1)
+            self.splitter.setSizes([4 * EDITOR_WIDTH, EDITOR_WIDTH - 60])
+        else:
+            self.splitter = QtWidgets.QSplitter(QtCore.Qt.Orientation.Horizontal)
+            self.splitter.addWidget(_scrolled(self.side))
+            self.splitter.addWidget(content)
+            self.splitter.setStretchFactor(1, 1)
+            self.splitter.setSizes([EDITOR_WIDTH, 10 * EDITOR_WIDTH])
+        self.splitter.setChildrenCollapsible(False)
+        layout.addWidget(self.splitter)
 
     def show_message(self, text: str | None) -> None:
         self.message.setText(text or "")
@@ -138,18 +170,21 @@ class StudyTabs(QtCore.QObject):
 
     # ------------------------------------------------------------------ building
     def _build_start_stop(self, model) -> StudyTab:
-        tab = StudyTab(PassageEditor(model))
+        tab = StudyTab(PassageEditor(model, compact=True), editor_on_top=True)
         self.runup_view = PassageView()
         self.rundown_view = PassageView()
-        self.rundown_view.caution_label.setVisible(False)
         views = QtWidgets.QHBoxLayout()
-        views.addWidget(self.runup_view)
-        views.addWidget(self.rundown_view)
+        for view in (self.runup_view, self.rundown_view):
+            view.caution_label.setVisible(False)     # one caution line for both, below
+            views.addWidget(view)
         tab.content_layout.addLayout(views, 1)
+        caution = _label(CAUTION_LINE)
+        caution.setStyleSheet(CAUTION_STYLE)
+        tab.content_layout.addWidget(caution)
         return tab
 
     def _build_rigid_body(self, model) -> StudyTab:
-        tab = StudyTab(RigidBodyEditor(model))
+        tab = StudyTab(RigidBodyEditor(model), editor_below=True)
         self.rigid_body_view = RigidBodyView(model.view.units)
         tab.content_layout.addWidget(self.rigid_body_view, 1)
         return tab
@@ -169,7 +204,7 @@ class StudyTabs(QtCore.QObject):
 
     def _build_floor(self, model) -> StudyTab:
         editor = FloorEditor(model)
-        tab = StudyTab(editor)
+        tab = StudyTab(editor, editor_below=True)
         self.floor_view = FloorView()
         self.floor_view.floorSpectrumEdited.connect(editor.set_bands)
         inverse = QtWidgets.QGroupBox("Highest natural frequency meeting the criterion")
@@ -181,18 +216,20 @@ class StudyTabs(QtCore.QObject):
         self.use_fn_button.clicked.connect(self.use_floor_natural_frequency)
         form.addWidget(self.floor_inverse_label)
         form.addWidget(self.use_fn_button)
-        tab.side_layout.addWidget(inverse)
+        editor.layout().insertWidget(editor.layout().count() - 1, inverse)   # under the inputs, above the stretch
         self.floor_table = QtWidgets.QTableWidget(0, 5)
         self.floor_table.setObjectName("floor_margins")
         self.floor_table.setHorizontalHeaderLabels(
-            ["Band (Hz)", "Predicted (µm/s)", "Limit (µm/s)", "Margin (dB)", "Stroke RMS (µm)"])
+            ["Band\nHz", "Equipment\nµm/s", "Limit\nµm/s", "Margin\ndB", "Stroke\nµm RMS"])
         self.floor_table.verticalHeader().setVisible(False)
         self.floor_table.setEditTriggers(QtWidgets.QAbstractItemView.EditTrigger.NoEditTriggers)
         self.floor_table.horizontalHeader().setSectionResizeMode(QtWidgets.QHeaderView.ResizeMode.Stretch)
         box = QtWidgets.QGroupBox("Per band (assessed bands)")
         inner = QtWidgets.QVBoxLayout(box)
         inner.addWidget(self.floor_table)
-        tab.side_layout.addWidget(box, 1)
+        box.setMinimumWidth(380)
+        self.floor_table.verticalHeader().setDefaultSectionSize(22)
+        tab.side_layout.addWidget(box, 3)
         tab.content_layout.addWidget(self.floor_view, 1)
         return tab
 
@@ -419,6 +456,9 @@ class StudyTabs(QtCore.QObject):
         if self._drawn.get("design_map") != key:
             self._drawn["design_map"] = key
             self.map_view.show_map(found, point)
+            self.map_view.plot.getAxis("bottom").setTicks(log_ticks(found.natural_frequency_hz[0],
+                                                                   found.natural_frequency_hz[-1]))
+            self.map_view.plot.getAxis("left").setTicks(log_ticks(found.damping_ratio[0], found.damping_ratio[-1]))
         limits = found.limits
         ramp = ("the start-and-stop study's run-up" if project.studies.passage is not None
                 else "no passage study: a default run-up")
@@ -509,7 +549,11 @@ class StudyTabs(QtCore.QObject):
             self.two_stage_curve.setData(curves.frequency_hz[finite], curves.two_stage[finite])
             self.single_stage_curve.setData(curves.frequency_hz[finite], curves.single_stage[finite])
             self.two_stage_speed.setValue(np.log10(curves.speed_hz))
-            self.two_stage_plot.getPlotItem().enableAutoRange()
+            plot = self.two_stage_plot.getPlotItem()
+            plot.enableAutoRange()
+            plot.getAxis("bottom").setTicks(log_ticks(curves.frequency_hz[0], curves.frequency_hz[-1]))
+            plot.getAxis("left").setTicks(log_ticks(float(np.min(curves.two_stage[finite])),
+                                                    float(np.max(curves.two_stage[finite]))))
 
     # ------------------------------------------------------------------ actions
     def move_design_to(self, natural_frequency_hz: float, damping_ratio: float) -> bool:

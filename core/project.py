@@ -258,6 +258,16 @@ def save_project(project: Project, path: str | os.PathLike) -> None:
         text = project_to_text(project)
     except (TypeError, ValueError) as error:
         raise ProjectFileError(str(path), f"design cannot be written ({error})") from None
+    write_text_atomically(path, text)
+
+
+def write_text_atomically(path: str | os.PathLike, text: str) -> None:
+    """Write UTF-8 text by atomic replace: temporary file in the same folder, flush, fsync, replace.
+
+    On any failure the previous file at ``path`` is left byte-identical, the
+    temporary file is removed, and ProjectFileError says what went wrong.
+    """
+    path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
     temporary = None
     try:

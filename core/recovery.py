@@ -19,13 +19,12 @@ from __future__ import annotations
 import json
 import os
 import sys
-import tempfile
 import time
 from pathlib import Path
 from typing import NamedTuple
 
 from core.errors import ProjectFileError
-from core.project import Project, load_project, save_project
+from core.project import Project, load_project, save_project, write_text_atomically
 
 #: Environment variable that moves the recovery folder (tests, portable installs).
 RECOVERY_DIR_ENV = "MOUNTSMITH_RECOVERY_DIR"
@@ -84,8 +83,9 @@ def write_recovery(project: Project, source_path: str | os.PathLike | None) -> P
     """Write this program's recovery copy of ``project``; return the copy's path.
 
     The project goes through :func:`core.project.save_project` (temporary file,
-    fsync, atomic replace); the small info file beside it is replaced atomically
-    too. Raises ProjectFileError if the folder cannot be written.
+    fsync, atomic replace); the small info file beside it goes through
+    :func:`core.project.write_text_atomically`. Raises ProjectFileError if the
+    folder cannot be written.
     """
     folder = recovery_dir()
     try:
@@ -96,28 +96,8 @@ def write_recovery(project: Project, source_path: str | os.PathLike | None) -> P
     save_project(project, project_path)
     info = {"format": INFO_FORMAT, "source_path": None if source_path is None else str(source_path),
             "saved_at": time.time(), "pid": os.getpid()}
-    _write_text_atomically(info_path, json.dumps(info, ensure_ascii=False) + "\n")
+    write_text_atomically(info_path, json.dumps(info, ensure_ascii=False) + "\n")
     return project_path
-
-
-def _write_text_atomically(path: Path, text: str) -> None:
-    temporary = None
-    try:
-        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-        with os.fdopen(handle, "w", encoding="utf-8") as stream:
-            stream.write(text)
-            stream.flush()
-            os.fsync(stream.fileno())
-        os.replace(temporary, path)
-        temporary = None
-    except OSError as error:
-        raise ProjectFileError(str(path), f"was not saved ({error.strerror or error})") from None
-    finally:
-        if temporary is not None:
-            try:
-                os.unlink(temporary)
-            except OSError:
-                pass
 
 
 def _process_running(pid: int) -> bool:

@@ -408,8 +408,8 @@ class StudyTabs(QtCore.QObject):
             tab.show_message(str(error))
             return
         tab.show_message(None)
-        if self._drawn.get("passage") != (up, down):
-            self._drawn["passage"] = (up, down)
+        if self._drawn.get("passage") is not up:
+            self._drawn["passage"] = up
             self.runup_view.show_result(up)
             self.rundown_view.show_result(down)
 
@@ -452,9 +452,9 @@ class StudyTabs(QtCore.QObject):
         point = None
         if result is not None and not hysteretic:
             point = (result.natural_frequency_hz, design.damping.value)
-        key = (found, point)
-        if self._drawn.get("design_map") != key:
-            self._drawn["design_map"] = key
+        drawn = self._drawn.get("design_map")
+        if drawn is None or drawn[0] is not found or drawn[1] != point:
+            self._drawn["design_map"] = (found, point)
             self.map_view.show_map(found, point)
             self.map_view.plot.getAxis("bottom").setTicks(log_ticks(found.natural_frequency_hz[0],
                                                                    found.natural_frequency_hz[-1]))

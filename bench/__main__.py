@@ -93,7 +93,8 @@ def main(argv=None) -> int:
         print(f"  {row['module']:<28} {row['cumulative_ms']:8.1f} ms")
     info = results["machine"]
     print(f"\nmachine: {info['cpu']}, {info['cores']} cores, Python {info['python']}, "
-          + ", ".join(f"{k} {v}" for k, v in info["packages"].items()))
+          + ", ".join(f"{k} {v}" for k, v in info["packages"].items())
+          + f"; load average {info['load_average_1_5_15_min']} (other work shares these cores)")
     print(f"written {args.out} in {results['elapsed_s']:.0f} s")
     return 0
 

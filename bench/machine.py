@@ -27,9 +27,14 @@ def machine() -> dict:
             versions[name] = importlib.metadata.version(name)
         except importlib.metadata.PackageNotFoundError:
             continue
+    try:
+        load = [round(value, 2) for value in os.getloadavg()]
+    except OSError:
+        load = None
     return {"cpu": cpu_model(), "cores": os.cpu_count(), "platform": platform.platform(),
             "python": sys.version.split()[0], "packages": versions,
-            "qt_platform": os.environ.get("QT_QPA_PLATFORM", "offscreen")}
+            "qt_platform": os.environ.get("QT_QPA_PLATFORM", "offscreen"),
+            "load_average_1_5_15_min": load}
 
 
 def memory_kb(field: str = "VmHWM") -> int | None:

@@ -153,6 +153,7 @@ def test_random_inputs_reached_both_outcomes():
     # Guards the strategy: a run where nothing synthesizes (or nothing is refused) proves little.
     if not any(OUTCOMES.values()):   # run on its own: collect the counts first
         test_random_inputs_give_a_named_error_or_finite_correct_results()
+    print(f"\nrandom designs: {OUTCOMES}")
     assert OUTCOMES["refused"] > 200 and OUTCOMES["synthesized"] > 200, OUTCOMES
 
 

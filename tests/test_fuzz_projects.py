@@ -320,8 +320,11 @@ def test_odd_file_names_are_plain_paths(tmp_path, name):
 def test_pipes_devices_and_folders_are_refused_without_blocking(tmp_path):
     fifo = tmp_path / "pipe.json"
     os.mkfifo(fifo)   # reading a pipe with no writer would block forever
+    loop = tmp_path / "loop.json"
+    os.symlink(loop, loop)
     for path, reason in [(fifo, "not a regular file"), (Path("/dev/zero"), "not a regular file"),
-                         (tmp_path, "folder"), (tmp_path / "missing.json", "no such file")]:
+                         (tmp_path, "folder"), (tmp_path / "missing.json", "no such file"),
+                         (loop, "cannot be read"), (tmp_path / ("n" * 5000), "cannot be read")]:
         with bounded(10), pytest.raises(ProjectFileError, match=reason):
             load_project(path)
         with bounded(10):

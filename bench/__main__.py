@@ -70,7 +70,7 @@ def main(argv=None) -> int:
     results: dict = {"quick": quick}
     with tempfile.TemporaryDirectory(prefix="mountsmith-bench-") as recovery:
         print("core: frequency response, design map, modes, run-up ...", flush=True)
-        repeats = 5 if quick else 9
+        repeats = 3 if quick else 9
         results.update(core_speed.frequency_response_speed(repeats))
         results.update(core_speed.design_map_speed(3 if quick else 5))
         results.update(core_speed.rigid_body_speed(repeats))
@@ -80,7 +80,7 @@ def main(argv=None) -> int:
         results["slow_imports"] = cold_start.slow_imports(recovery)
         results.update(cold_start.peak_rss(recovery))
         print("live update: window against matplotlib ...", flush=True)
-        results.update(live_update.live_update(500 if quick else 1000, 60 if quick else 200))
+        results.update(live_update.live_update(500 if quick else 1000, 40 if quick else 200))
     results["elapsed_s"] = time.time() - started
     results["machine"] = machine()
     results["measured_at_utc"] = time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime())

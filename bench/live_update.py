@@ -150,7 +150,7 @@ def matplotlib_steps(steps: int, size_px: tuple[int, int]) -> dict:
 
 def live_update(steps: int, matplotlib_steps_count: int) -> dict:
     damping = window_steps(steps, "damping_slider")
-    ratio = window_steps(100 if steps <= 500 else steps // 2, "ratio_slider")
+    ratio = window_steps(60 if steps <= 500 else steps // 2, "ratio_slider")
     reference = matplotlib_steps(matplotlib_steps_count, tuple(damping["plot_size_px"]))
     return {
         "live_update_median_ms": damping["median_ms"],

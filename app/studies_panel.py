@@ -57,6 +57,7 @@ class StudyField(FieldRow):
         self.unit = unit
         self.apply = apply
         self.optional = optional
+        self.show_unit = True          # False: the unit label stays empty (a field of a triplet)
         self.units = "SI"
         self.shown = object()
         self.editor.setObjectName(name)
@@ -85,7 +86,7 @@ class StudyField(FieldRow):
         if units != self.units:
             self.units = units
             self.shown = object()
-            if self.kind:
+            if self.kind and self.show_unit:
                 self.unit_label.setText(unit_symbol(self.kind, units))
         if value == self.shown:
             return
@@ -139,6 +140,8 @@ class StudyEditor(QtWidgets.QWidget):
         self.model = model
         self.units = model.view.units
         self.fields: dict[str, StudyField] = {}
+        #: Input widgets outside ``box`` that follow the enable box too.
+        self.extra_inputs: list[QtWidgets.QWidget] = []
         self.compact = compact
         outer = QtWidgets.QVBoxLayout(self)
         outer.setContentsMargins(4, 4, 4, 4)
@@ -208,6 +211,7 @@ class StudyEditor(QtWidgets.QWidget):
                                tooltip=f"{tooltip} ({axis})".strip())
             field.editor.setPlaceholderText(axis)
             if index < 2:
+                field.show_unit = False
                 field.unit_label.setMinimumWidth(0)
             line.addWidget(field, 1)
             self.fields[f"{key}_{axis}"] = field
@@ -222,6 +226,8 @@ class StudyEditor(QtWidgets.QWidget):
         with signals_blocked(self.enable_check):
             self.enable_check.setChecked(study is not None)
         self.box.setEnabled(study is not None)
+        for widget in self.extra_inputs:
+            widget.setEnabled(study is not None)
         if study is not None:
             self.show_study(study)
 
@@ -355,6 +361,9 @@ class RigidBodyEditor(StudyEditor):
         self.mount_table.horizontalHeader().setSectionResizeMode(QtWidgets.QHeaderView.ResizeMode.Stretch)
         self.mount_table.setMinimumHeight(110)
         self.mount_table.itemChanged.connect(self._cell_edited)
+        self.mount_table.setHorizontalHeaderLabels([f"{name}\n{unit_symbol(kind, self.units)}"
+                                                    for name, kind, _ in MOUNT_COLUMNS])
+        self.extra_inputs.append(self.mounts_box)
         inner.addWidget(self.mount_table)
         self.reset_button = QtWidgets.QPushButton("Reset layout from the design")
         self.reset_button.setObjectName("reset_rigid_body")

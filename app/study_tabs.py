@@ -92,6 +92,7 @@ class StudyTab(QtWidgets.QWidget):
         self.content_layout.addWidget(self.message)
         self.off_label = _label("", "study_off")
         self.content_layout.addWidget(self.off_label)
+        self.content_layout.addStretch(0)   # keeps the notes at the top while the view is hidden
         content = _scrolled(self.content, None)   # a narrow window scrolls the view, never widens
         layout = QtWidgets.QVBoxLayout(self)
         layout.setContentsMargins(2, 2, 2, 2)

@@ -221,3 +221,18 @@ def test_inverse_design_round_trips(model, value, percent):
         return
     assert r > CROSSOVER_RATIO
     assert abs(complex(force_transmissibility(r, d))) == pytest.approx(tau, rel=1e-9)
+
+
+@settings(max_examples=300, deadline=None)
+@given(model=st.sampled_from(["viscous", "hysteretic"]), value=st.floats(0.0, 2.0),
+       ratio=st.floats(1e-3, 1e3))
+def test_real_arithmetic_response_equals_complex_expression(model, value, ratio):
+    # The fast real form must equal the complex closed form (Vigran eq. 2.33; Snowdon) and its angle.
+    d = Damping(model, value)
+    if value == 0.0 and abs(ratio - 1.0) < 1e-6:
+        return
+    fast = frequency_response(np.array([ratio]), d)
+    exact = complex(force_transmissibility(ratio, d))
+    assert fast.magnitude[0] == pytest.approx(abs(exact), rel=1e-12)
+    assert fast.phase_deg[0] == pytest.approx(np.degrees(np.angle(exact)), abs=1e-9)
+    assert complex(fast.response[0]) == pytest.approx(exact, rel=1e-11, abs=1e-300)

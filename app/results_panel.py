@@ -184,3 +184,6 @@ class ResultsPanel(QtWidgets.QWidget):
     def _show_warnings(self) -> None:
         warnings = self._design_warnings + self._study_warnings
         self.warnings_label.setText("\n".join(f"• {w}" for w in warnings) if warnings else "none")
+        # Wrapped rows may need more lines than before: recompute the row heights for the new texts.
+        for layout in (self.table.layout(), self.study_form, self.layout()):
+            layout.invalidate()

@@ -24,8 +24,9 @@ from core.studies import (
 from core.transmissibility import Damping
 from core.units import from_display, parse_display, parse_number, to_display, unit_symbol
 
-#: Starting floor level of a new floor study: flat 10 µm/s RMS per band (an invented, moderate floor).
-DEFAULT_FLOOR_VELOCITY_M_S = 10e-6
+#: Starting floor level of a new floor study: flat 20 µm/s RMS per band (an invented, lively floor,
+#: above VC-C so that the mounts have work to do).
+DEFAULT_FLOOR_VELOCITY_M_S = 20e-6
 
 
 def set_study(model: DesignModel, name: str, study, merge_key: str | None = None) -> bool:
@@ -210,9 +211,8 @@ class StudyEditor(QtWidgets.QWidget):
             field = StudyField(f"{key}_{axis}", kind, apply, unit if index == 2 else "",
                                tooltip=f"{tooltip} ({axis})".strip())
             field.editor.setPlaceholderText(axis)
-            if index < 2:
-                field.show_unit = False
-                field.unit_label.setMinimumWidth(0)
+            field.unit_label.setMinimumWidth(0)       # three fields share the width evenly
+            field.show_unit = index == 2
             line.addWidget(field, 1)
             self.fields[f"{key}_{axis}"] = field
             fields.append(field)

@@ -11,7 +11,8 @@ evaluate_two_stage, two_stage_curves, design_map_of, design_at_map_point),
 ``core.rigid_body`` and ``core.transmissibility``. Results are cached by their
 inputs, so a study is recomputed only when the design or the study changed;
 the updates are coalesced by a short single-shot timer (a slider drag redraws
-the plots at once and the studies when it pauses). Only the shown tab is drawn.
+the plots at every step and the studies at most every ``STUDY_DELAY_MS``). Only
+the shown tab is drawn.
 """
 from __future__ import annotations
 
@@ -252,7 +253,7 @@ class StudyTabs(QtCore.QObject):
             axis.setTextPen(PALETTE["foreground"])
         plot.setLabel("bottom", "Forcing frequency", units="Hz")
         plot.setLabel("left", "Force transmissibility |T|")
-        legend = plot.addLegend(offset=(-10, 10), brush=(255, 255, 255, 220), labelTextColor=PALETTE["foreground"])
+        legend = plot.addLegend(offset=(10, -10), brush=(255, 255, 255, 220), labelTextColor=PALETTE["foreground"])
         self.single_stage_curve = plot.plot(
             pen=pg.mkPen(PALETTE["reference"], width=LINE_WIDTH["design"], style=QtCore.Qt.PenStyle.DashLine),
             name="single stage (machine mounts on the floor)")
@@ -270,8 +271,9 @@ class StudyTabs(QtCore.QObject):
 
     # ------------------------------------------------------------------ scheduling
     def schedule(self) -> None:
-        """Update the studies once the edits pause (restarts the timer)."""
-        self._timer.start()
+        """Update the studies soon; edits arriving before the timer fires join that one update."""
+        if not self._timer.isActive():
+            self._timer.start()
 
     @property
     def pending(self) -> bool:
@@ -400,13 +402,15 @@ class StudyTabs(QtCore.QObject):
         tab.show_off(None if study is not None else
                      "Start and stop is off: tick “Simulate start and stop” to see the run-up and coast-down.")
         for view in views:
-            view.setVisible(study is not None)
+            view.setVisible(study is not None and result is not None)
         if study is None or self._no_result(tab, result):
             return
         try:
             (up, down), _values = self._passage(project.design, result, study)
         except MountsmithError as error:
             tab.show_message(str(error))
+            for view in views:
+                view.setVisible(False)
             return
         tab.show_message(None)
         if self._drawn.get("passage") is not up:
@@ -424,13 +428,14 @@ class StudyTabs(QtCore.QObject):
             self._drawn.pop("rigid_body", None)
         tab.show_off(None if study is not None else
                      "Rigid body is off: tick the box to start from the design's mount layout.")
-        self.rigid_body_view.setVisible(study is not None)
+        self.rigid_body_view.setVisible(study is not None and result is not None)
         if study is None or self._no_result(tab, result):
             return
         try:
             body, mounts, found, loads, values, estimate = self._rigid_body(project.design, result, study)
         except MountsmithError as error:
             tab.show_message(f"{error}  (use “Reset layout from the design” after changing the mount count)")
+            self.rigid_body_view.setVisible(False)
             return
         tab.show_message(None)
         editor = tab.editor
@@ -481,7 +486,7 @@ class StudyTabs(QtCore.QObject):
         tab, study = self.floor, project.studies.floor
         tab.show_off(None if study is not None else
                      "The floor study is off: tick the box to start from a flat floor spectrum.")
-        self.floor_view.setVisible(study is not None)
+        self.floor_view.setVisible(study is not None and result is not None)
         self.use_fn_button.setEnabled(False)
         if study is None or self._no_result(tab, result):
             return
@@ -489,6 +494,7 @@ class StudyTabs(QtCore.QObject):
             check, best, note = self._floor(project.design, result, study)
         except MountsmithError as error:
             tab.show_message(str(error))
+            self.floor_view.setVisible(False)
             return
         tab.show_message(None)
         if self._drawn.get("floor") is not check:
@@ -498,12 +504,19 @@ class StudyTabs(QtCore.QObject):
         if best is None:
             self.floor_inverse_label.setText(note)
         else:
-            bound = "" if best.bound == "criterion" else " (still met at the top of the search range)"
-            self.floor_inverse_label.setText(
-                f"{best.criterion}: fn ≤ {format_value(best.natural_frequency_hz, 'frequency', units)}{bound}, "
-                f"static deflection {format_value(best.static_deflection_m, 'length', units)} "
-                f"(common-practice relation g/(2π fn)²).")
-            self.use_fn_button.setEnabled(True)
+            if best.bound == "criterion":
+                self.floor_inverse_label.setText(
+                    f"{best.criterion}: fn ≤ {format_value(best.natural_frequency_hz, 'frequency', units)}, "
+                    f"static deflection {format_value(best.static_deflection_m, 'length', units)} "
+                    f"(common-practice relation g/(2π fn)²).")
+                self.use_fn_button.setEnabled(True)
+            else:   # met up to the top of the search range: the floor alone meets the criterion
+                low, high = best.search_range_hz
+                self.floor_inverse_label.setText(
+                    f"{best.criterion} is met by natural frequencies up to {high:g} Hz, the top of the search: "
+                    "this floor needs no isolation for it" + (" (every natural frequency from "
+                                                             f"{low:g} Hz passes)." if best.every_frequency_passes
+                                                             else "."))
         self._floor_best = best
 
     def _fill_floor_table(self, check) -> None:
@@ -526,14 +539,16 @@ class StudyTabs(QtCore.QObject):
         tab, study = self.two_stage, project.studies.two_stage
         tab.show_off(None if study is not None else
                      "Two-stage is off: tick the box to put the machine's mounts on an intermediate mass.")
-        self.two_stage_plot.setVisible(study is not None)
-        self.two_stage_label.setVisible(study is not None)
+        self.two_stage_plot.setVisible(study is not None and result is not None)
+        self.two_stage_label.setVisible(study is not None and result is not None)
         if study is None or self._no_result(tab, result):
             return
         try:
             values, curves = self._two_stage(project.design, result, study)
         except MountsmithError as error:
             tab.show_message(str(error))
+            self.two_stage_plot.setVisible(False)
+            self.two_stage_label.setVisible(False)
             return
         tab.show_message(None)
         low, high = values["two_stage_frequencies_hz"]

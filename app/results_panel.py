@@ -165,7 +165,12 @@ class ResultsPanel(QtWidgets.QWidget):
     def show_studies(self, rows, warnings) -> None:
         """Rows ``(label, text)`` of the project's studies and their warnings (from core)."""
         rows = [tuple(row) for row in rows]
-        if rows != self._study_rows:
+        if [label for label, _ in rows] == [label for label, _ in self._study_rows]:
+            for label, text in rows:          # same rows: new texts only
+                if self.study_value_labels[label].text() != text:
+                    self.study_value_labels[label].setText(text)
+            self._study_rows = rows
+        else:
             self._study_rows = rows
             while self.study_form.rowCount():
                 self.study_form.removeRow(0)

@@ -17,7 +17,7 @@ from app.design_panel import FieldRow, _error_text, message_label, signals_block
 from app.style import CAUTION_STYLE
 from core.design_model import DesignModel
 from core.errors import InputError
-from core.floor import CRITERIA, flat_floor_spectrum, parse_floor_csv
+from core.floor import CRITERIA, flat_floor_spectrum, floor_spectrum, parse_floor_csv
 from core.materials import MOUNT_MATERIALS
 from core.studies import (
     AXES, FloorStudy, MountPlacement, PassageStudy, RigidBodyStudy, TwoStageStudy, default_rigid_body_study)
@@ -559,9 +559,8 @@ class FloorEditor(StudyEditor):
         study = self.study
         if study is None:
             return
-        self._try(lambda: set_study(self.model, "floor", replace(
-            study, band_hz=tuple(b for b, _ in bands), velocity_m_s=tuple(v for _, v in bands)),
-            merge_key="study.floor_table"))
+        self._try(lambda: set_study(self.model, "floor", self._with_spectrum(floor_spectrum(
+            [b for b, _ in bands], [v for _, v in bands], field="floor table"))))
 
     def show_study(self, study: FloorStudy) -> None:
         with signals_blocked(self.criterion_combo):

@@ -337,6 +337,13 @@ def test_floor_spectrum_from_paste_flat_level_and_criterion(main_window, tmp_pat
     settle(window)
     flat = window.model.project.studies.floor
     assert flat.velocity_m_s == pytest.approx((2e-6,) * 20) and flat.band_hz[0] == 1.0 and flat.band_hz[-1] == 80.0
+    tabs.floor_view.table.item(2, 1).setText("7")        # the 1.6 Hz band typed in the floor view's table
+    settle(window)
+    edited = window.model.project.studies.floor
+    assert edited.velocity_m_s[2] == pytest.approx(7e-6) and edited.velocity_m_s[3] == pytest.approx(2e-6)
+    assert edited.band_hz == flat.band_hz                  # nominal band centres kept
+    window.model.undo()
+    assert window.model.project.studies.floor == flat
     editor.criterion_combo.setCurrentIndex(editor.criterion_combo.findData("VC-E"))
     settle(window)
     assert window.model.project.studies.floor.criterion == "VC-E"

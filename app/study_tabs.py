@@ -175,10 +175,13 @@ class StudyTabs(QtCore.QObject):
         tab = StudyTab(PassageEditor(model, compact=True), editor_on_top=True)
         self.runup_view = PassageView()
         self.rundown_view = PassageView()
+        self.passage_header = _label("", "passage_header")
+        tab.content_layout.addWidget(self.passage_header)
         views = QtWidgets.QHBoxLayout()
         for view in (self.runup_view, self.rundown_view):
             view.caution_label.setVisible(False)     # one caution line for both, below
             views.addWidget(view)
+            view.displacement_plot.legend.setVisible(False)  # it covers the peak at this size: the header says it
         tab.content_layout.addLayout(views, 1)
         caution = _label(CAUTION_LINE)
         caution.setStyleSheet(CAUTION_STYLE)
@@ -417,6 +420,16 @@ class StudyTabs(QtCore.QObject):
             self._drawn["passage"] = up
             self.runup_view.show_result(up)
             self.rundown_view.show_result(down)
+            # Short titles that fit side by side; the system's fn and damping go in the header once.
+            for view, run, word in ((self.runup_view, up, "Run-up to"), (self.rundown_view, down, "Coast-down from")):
+                view.displacement_plot.setTitle(f"{word} {format_value(run.operating_speed_rpm, 'speed', units)}",
+                                                color=PALETTE["foreground"])
+            equivalent = " (equivalent viscous at speed)" if project.design.damping.model == "hysteretic" else ""
+            self.passage_header.setText(
+                f"Machine on its mounts: fn = {format_value(up.natural_frequency_hz, 'frequency', units)}, "
+                f"ζ = {up.damping_ratio:.3g}{equivalent}; run-up {study.runup_s:g} s, coast-down "
+                f"{study.rundown_s:g} s (linear speed ramps). Solid: envelope during the passage; dashed: "
+                "steady state at that speed; dot: peak.")
 
     def _draw_rigid_body(self, project, result, units) -> None:
         tab, study = self.rigid_body, project.studies.rigid_body

@@ -274,7 +274,11 @@ class StudyTabs(QtCore.QObject):
 
     # ------------------------------------------------------------------ scheduling
     def schedule(self) -> None:
-        """Update the studies soon; edits arriving before the timer fires join that one update."""
+        """Update the studies soon; edits arriving before the timer fires join that one update.
+
+        The comparison curve is redrawn at once, with the design curve it sits beside.
+        """
+        self.refresh_comparison()
         if not self._timer.isActive():
             self._timer.start()
 

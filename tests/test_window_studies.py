@@ -415,6 +415,11 @@ def test_material_picker_and_equal_peak_comparison(main_window):
     x, y = window.plots.comparison_magnitude.getOriginalDataset()
     eta = 1 / math.sqrt(viscous_peak(0.06) ** 2 - 1)   # hysteretic peak sqrt(1+η²)/η = viscous peak
     np.testing.assert_allclose(y, hysteretic_t(x, eta), rtol=1e-9)
+    window.operating.damping_spin.setValue(0.2)          # follows the design curve at once, no study delay
+    window.refresh_now()
+    x, y = window.plots.comparison_magnitude.getOriginalDataset()
+    np.testing.assert_allclose(y, hysteretic_t(x, 1 / math.sqrt(viscous_peak(0.2) ** 2 - 1)), rtol=1e-9)
+    window.model.undo()
     rubber = next(m for m in MOUNT_MATERIALS if m.name == "Natural rubber")
     tabs.material.combo.setCurrentIndex(tabs.material.combo.findData(rubber.name))
     settle(window)

@@ -105,11 +105,22 @@ class PassageStudy:
 
 
 def simulate_passages(design: DesignInputs, result: DesignResult, study: PassageStudy):
-    """Run-up and coast-down simulations, as two :class:`core.passage.PassageResult`."""
+    """Run-up and coast-down simulations, as two :class:`core.passage.PassageResult`.
+
+    Viscous mounts use their damping coefficient. An elastomer (loss factor eta)
+    is simulated with the equivalent viscous damping at the natural frequency,
+    c = eta k / omega_n (zeta = eta / 2), where the passage peak occurs; the value
+    at running speed would understate the damping there by the frequency ratio.
+    """
     unbalance, _ = unbalance_of(design)
     unbalance = unbalance if unbalance > 0 else 1e-3  # ratios do not depend on it (linear system)
-    common = dict(mass_kg=design.mass_kg, stiffness_n_per_m=result.stiffness_total_n_per_m,
-                  damping_n_s_per_m=result.damping_total_n_s_per_m, unbalance_kg_m=unbalance,
+    stiffness = result.stiffness_total_n_per_m
+    if design.damping.model == "hysteretic":
+        damping = design.damping.value * math.sqrt(stiffness * design.mass_kg)
+    else:
+        damping = result.damping_total_n_s_per_m
+    common = dict(mass_kg=design.mass_kg, stiffness_n_per_m=stiffness,
+                  damping_n_s_per_m=damping, unbalance_kg_m=unbalance,
                   speed_rpm=result.speeds_rpm[0])
     up = passage.simulate_runup(ramp_s=study.runup_s, direction="up", **common)
     down = passage.simulate_runup(ramp_s=study.rundown_s, direction="down", **common)

@@ -186,3 +186,15 @@ def test_demo_set_covers_every_study():
 def test_mount_placement_defaults():
     placement = MountPlacement(position_m=(0.0, 0.0, 0.0))
     assert placement.to_dict()["stiffness_n_per_m"] is None
+
+
+def test_elastomer_passage_uses_damping_at_resonance():
+    # Hysteretic damping at resonance equals viscous ζ = η/2 (equal peak height 1/η ≈ 1/(2ζ),
+    # REFERENCES §1), so an elastomer design passes resonance like a viscous one with ζ = η/2.
+    elastomer = _machine(load_layout="equal", damping=Damping("hysteretic", 0.12), tuning="frequency_ratio",
+                         frequency_ratio=5.0)
+    viscous = replace(elastomer, damping=Damping("viscous", 0.06))
+    study = Studies(passage=PassageStudy(runup_s=10.0, rundown_s=10.0))
+    a = study.evaluate(elastomer, synthesize(elastomer))
+    b = study.evaluate(viscous, synthesize(viscous))
+    assert a["startup_peak_displacement_mm"] == pytest.approx(b["startup_peak_displacement_mm"], rel=1e-9)

@@ -21,8 +21,6 @@ from dataclasses import dataclass
 from typing import Sequence
 
 import numpy as np
-import scipy.linalg
-from scipy.spatial.transform import Rotation
 
 from core.constants import STANDARD_GRAVITY
 from core.errors import InputError
@@ -87,6 +85,7 @@ def _rotation(value, field: str) -> np.ndarray:
         if not np.all(np.isfinite(matrix)):
             raise InputError(field, "must hold finite numbers", value)
         if matrix.shape == (3,):
+            from scipy.spatial.transform import Rotation  # imported here: scipy loads in ~0.2 s, kept off the window's start-up
             matrix = Rotation.from_euler("xyz", matrix).as_matrix()
         elif matrix.shape != (3, 3):
             raise InputError(field, "must be a 3x3 rotation matrix or three angles in rad", value)
@@ -415,6 +414,7 @@ def _free_motion_error(free_shapes: np.ndarray, cg_m: np.ndarray) -> InputError:
 
 def _solve_modes(stiffness: np.ndarray, mass: np.ndarray, cg_m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """``eigh(K, M)``; InputError naming the free motions if K leaves any unresisted."""
+    import scipy.linalg  # imported here: scipy loads in ~0.2 s, kept off the window's start-up
     eigenvalues, shapes = scipy.linalg.eigh(stiffness, mass)
     free = eigenvalues <= _FREE_MOTION_RELATIVE * max(eigenvalues[-1], 0.0)
     if np.any(free):
@@ -550,6 +550,7 @@ def static_loads(body: RigidBody, mounts: Sequence[Mount], g=STANDARD_GRAVITY) -
     _solve_modes(stiffness, mass, body.cg_m)
     weight = body.mass_kg * gravity
     load = np.array([0.0, 0.0, -weight, 0.0, 0.0, 0.0])
+    import scipy.linalg  # imported here: scipy loads in ~0.2 s, kept off the window's start-up
     displacement = scipy.linalg.solve(stiffness, load, assume_a="sym")
     deflection = _arm_matrices(mounts, body.cg_m) @ displacement
     matrices = np.array([mount.stiffness_matrix_n_per_m for mount in mounts])

@@ -18,7 +18,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import eigh
 
 from core.errors import InputError
 from core.transmissibility import MAX_DAMPING, Damping, force_transmissibility
@@ -144,6 +143,7 @@ def two_stage_modes(system: TwoStageSystem) -> TwoStageModes:
     k1, k2 = system.lower_stiffness_n_per_m, system.upper_stiffness_n_per_m
     stiffness = np.array([[k1 + k2, -k2], [-k2, k2]])
     mass = np.diag([system.intermediate_mass_kg, system.machine_mass_kg])
+    from scipy.linalg import eigh  # imported here: scipy loads in ~0.2 s, kept off the window's start-up
     eigenvalues, shapes = eigh(stiffness, mass)
     return TwoStageModes(np.sqrt(eigenvalues) / (2.0 * np.pi), shapes)
 

@@ -494,4 +494,6 @@ def run(path: str | None = None) -> int:
     window.show()
     if path:
         window.open_file(path)
+    from app.recovery_prompt import install  # autosave while modified, restore offer after a crash
+    install(window)
     return app.exec()

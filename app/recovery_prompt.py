@@ -13,7 +13,7 @@ import os
 from dataclasses import fields, replace
 from pathlib import Path
 
-from PySide6 import QtCore, QtWidgets
+from PySide6 import QtCore, QtGui, QtWidgets
 
 from core.design import DesignInputs
 from core.errors import MountsmithError
@@ -124,8 +124,18 @@ def offer_restore(window) -> bool:
     return restored
 
 
-def install(window, offer: bool = True) -> Autosave:
-    """Attach autosave to ``window`` and, if ``offer``, offer an orphaned recovery copy."""
+#: Qt platforms without a screen: nobody could answer the restore question there.
+HEADLESS_PLATFORMS = ("offscreen", "minimal")
+
+
+def install(window, offer: bool | None = None) -> Autosave:
+    """Attach autosave to ``window`` and offer an orphaned recovery copy.
+
+    ``offer`` defaults to True except on a headless Qt platform, where the copy is kept
+    for the next start with a screen instead of blocking on a question nobody sees.
+    """
+    if offer is None:
+        offer = QtGui.QGuiApplication.platformName() not in HEADLESS_PLATFORMS
     if offer:
         offer_restore(window)
     window.autosave = Autosave(window)

@@ -470,3 +470,14 @@ def test_restore_without_the_original_file_gives_an_unsaved_new_design(main_wind
     assert window.model.path is None and window.model.dirty
     assert window.model.design.mass_kg == 612.0
     assert window.model.name == "renamed before the crash"
+
+
+@pytest.mark.gui
+def test_headless_start_keeps_the_copy_instead_of_asking(main_window, folder, monkeypatch):
+    # Offscreen nobody can answer: no question, and the copy waits for a start with a screen.
+    from app import recovery_prompt
+    _orphan(folder, None)
+    monkeypatch.setattr(recovery_prompt, "ask_restore", lambda window, found: pytest.fail("asked headless"))
+    window = main_window()
+    recovery_prompt.install(window)
+    assert find_recovery() is not None and not window.model.dirty

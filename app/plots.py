@@ -7,6 +7,13 @@ numbers come from :mod:`core.curves` and :mod:`core.transmissibility`.
 
 pyqtgraph log axes take log10 coordinates for every item other than
 PlotDataItem (lines, regions, text), so those positions go through ``_lx``/``_ly``.
+
+Layered painting (interactive plots only): a slider drag changes only the design curves,
+markers, legend and crosshair. Everything else (grid, axes, reference family, regions,
+lines, labels) is rendered into two pixmaps when it changes: the layers drawn below the
+live items (view background) and the axes with their grid, drawn above them (view
+foreground), in the same stacking order as pyqtgraph's. Each paint then draws only the live
+items between two pixmap blits. Exports (``interactive=False``) paint every item as before.
 """
 from __future__ import annotations
 
@@ -140,8 +147,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             self.reference_labels.append(label)
         self.design_magnitude = self.magnitude_plot.plot(pen=self._pen("design"))
         self.design_phase = self.phase_plot.plot(pen=self._pen("design"))
-        self.design_magnitude.setZValue(10)
-        self.design_phase.setZValue(10)
+        for item in (self.design_magnitude, self.design_phase):
+            item.setZValue(10)
+            item.setClipToView(True)   # draws the visible points only (getOriginalDataset keeps all)
         marker = dict(pen=None, symbol="o", symbolSize=MARKER_SIZE * self.scale,
                       symbolBrush=PALETTE["operating"],
                       symbolPen=pg.mkPen(PALETTE["foreground"], width=1.0 * self.scale))
@@ -180,6 +188,143 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.phase_plot.getAxis("left").setTicks(
             [[(v, f"{v:g}") for v in (0, -45, -90, -135, -180)], []])
         self.phase_plot.setYRange(*PHASE_RANGE, padding=0)
+
+        self._layered = interactive
+        self._static_key = None
+        self._layers = None            # (key, below pixmap, above pixmap)
+        self._fit_key = None
+        self._own_no_contents = {}     # item -> its own ItemHasNoContents flag
+        self.layer_renders = 0
+        if self._layered:
+            self.setCacheMode(QtWidgets.QGraphicsView.CacheModeFlag.CacheNone)  # the layers are the cache
+
+    # ------------------------------------------------------------------ layered painting
+    def _live_items(self) -> list:
+        """Items that change during a slider drag; painted every frame between the two layers."""
+        items = [self.design_magnitude, self.design_phase, self.operating_magnitude, self.operating_phase,
+                 self.duty_magnitude, self.duty_phase, self.legend, *self.crosshair_lines]
+        if getattr(self, "comparison_magnitude", None) is not None:
+            items += [self.comparison_magnitude, self.comparison_phase]
+        return items
+
+    def _above_items(self) -> list:
+        """Static items pyqtgraph stacks above the curves: axes (with their grid) and view borders."""
+        items = []
+        for plot in (self.magnitude_plot, self.phase_plot):
+            items += [plot.getAxis(name) for name in ("left", "bottom", "top", "right")]
+            items.append(plot.getViewBox().borderRect)
+        return items
+
+    def _layer_key(self):
+        # The phase plot's y range follows its data (setLogMode turns auto-range on); a slider
+        # step moves it by about 1e-8 of its span. Ranges count as changed from 1e-4 of the
+        # span (under 0.1 px here).
+        def steps(low, high):
+            resolution = max(abs(high - low), 1e-300) * 1e-4
+            return round(low / resolution), round(high / resolution)
+
+        views = tuple((tuple(plot.getViewBox().sceneBoundingRect().getRect()),
+                       tuple(steps(*span) for span in plot.getViewBox().viewRange()))
+                      for plot in (self.magnitude_plot, self.phase_plot))
+        viewport = self.viewport()
+        return (self._static_key, viewport.width(), viewport.height(), viewport.devicePixelRatioF(), views)
+
+    def _render_layers(self, key) -> None:
+        scene = self.scene()
+        live, above = set(self._live_items()), set(self._above_items())
+        group_of = {}
+        for item in scene.items():
+            group, parent = "below", item
+            while parent is not None:
+                if parent in live:
+                    group = "live"
+                    break
+                if parent in above:
+                    group = "above"
+                    break
+                parent = parent.parentItem()
+            group_of[item] = group
+        no_contents = QtWidgets.QGraphicsItem.GraphicsItemFlag.ItemHasNoContents
+        own = {item: self._own_no_contents.get(item, bool(item.flags() & no_contents)) for item in group_of}
+        self._own_no_contents = own
+        viewport = self.viewport()
+        ratio = viewport.devicePixelRatioF()
+        target = QtCore.QRectF(0.0, 0.0, viewport.width(), viewport.height())
+        source = self.viewportTransform().inverted()[0].mapRect(target)
+
+        def render(group: str, fill) -> QtGui.QPixmap:
+            for item, kind in group_of.items():
+                item.setFlag(no_contents, own[item] or kind != group)
+            pixmap = QtGui.QPixmap(round(target.width() * ratio), round(target.height() * ratio))
+            pixmap.setDevicePixelRatio(ratio)
+            pixmap.fill(fill)
+            painter = QtGui.QPainter(pixmap)
+            painter.setRenderHints(self.renderHints())
+            scene.render(painter, target, source, QtCore.Qt.AspectRatioMode.IgnoreAspectRatio)
+            painter.end()
+            return pixmap
+
+        below = render("below", self.backgroundBrush().color())
+        above = render("above", QtCore.Qt.GlobalColor.transparent)
+        for item, kind in group_of.items():
+            item.setFlag(no_contents, own[item] or kind != "live")
+        self._layers = (key, below, above)
+        self.layer_renders += 1
+
+    def paintEvent(self, event):
+        if self._layered:
+            self.scene().prepareForPaint()
+            fit_key = (self._static_key,) + tuple(
+                (plot.getViewBox().width(), plot.getViewBox().height()) for plot in (self.magnitude_plot, self.phase_plot))
+            if fit_key != self._fit_key:
+                self._fit_key = fit_key
+                self._fit_phase_range()
+            key = self._layer_key()
+            if self._layers is None or self._layers[0] != key:
+                self._render_layers(key)
+                if event.rect() != self.viewport().rect():
+                    self.viewport().update()   # the rest of the viewport shows the old layers
+        return super().paintEvent(event)
+
+    def drawBackground(self, painter, rect):
+        if self._layered and self._layers is not None:
+            painter.save()
+            painter.resetTransform()
+            painter.drawPixmap(0, 0, self._layers[1])
+            painter.restore()
+        else:
+            super().drawBackground(painter, rect)
+
+    def drawForeground(self, painter, rect):
+        if self._layered and self._layers is not None:
+            painter.save()
+            painter.resetTransform()
+            painter.drawPixmap(0, 0, self._layers[2])
+            painter.restore()
+        else:
+            super().drawForeground(painter, rect)
+
+    def _static_changed(self, key) -> None:
+        """The static layers show ``key``; a new key re-renders them at the next paint."""
+        if key != self._static_key:
+            self._static_key = key
+            if self._layered:
+                self.viewport().update()
+
+    def _fit_phase_range(self) -> None:
+        """Auto-range the phase plot's y axis once, as pyqtgraph would at this paint, then hold it.
+
+        The phase y range follows the data (``setLogMode`` turns auto-range on) with a padding
+        that depends on the plot's height. A slider step moves it by about 1e-8 of its span yet
+        costs a second repaint, so an interactive plot fits it only when the static layers or
+        the plot sizes change. The design curve is unclipped meanwhile: its bounds count whole.
+        """
+        view = self.phase_plot.getViewBox()
+        self.design_phase.setClipToView(False)
+        view.enableAutoRange(axis=pg.ViewBox.YAxis)
+        view.updateAutoRange()
+        view.disableAutoRange(axis=pg.ViewBox.YAxis)
+        self.design_phase.setClipToView(True)
 
     # ------------------------------------------------------------------ styling
     def _pen(self, role: str, style=QtCore.Qt.PenStyle.SolidLine) -> QtGui.QPen:
@@ -281,12 +426,13 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
                     band.setVisible(True)
             duty = result.duty_points
             dx = x_of(np.array([point.frequency_ratio for point in duty], dtype=float))
-            self.duty_magnitude.setData(dx, y_of(np.array([point.transmissibility for point in duty], dtype=float)))
-            self.duty_phase.setData(dx, np.array([point.phase_deg for point in duty], dtype=float))
+            self._set_data(self.duty_magnitude, dx,
+                           y_of(np.array([point.transmissibility for point in duty], dtype=float)))
+            self._set_data(self.duty_phase, dx, np.array([point.phase_deg for point in duty], dtype=float))
             self._show_duty_in_legend(bool(duty))
         else:
             for item in (self.operating_magnitude, self.operating_phase, self.duty_magnitude, self.duty_phase):
-                item.setData([], [])
+                self._set_data(item, np.empty(0), np.empty(0))
             for band in self.speed_bands:
                 band.setVisible(False)
             self._show_duty_in_legend(False)
@@ -294,6 +440,18 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         symbol = "ζ" if damping.model == "viscous" else "η"
         self._set_legend(1, f"reference {symbol}")
         self._set_legend(3, f"target {design.isolation_percent:g} %")
+        bands = tuple(region for region in (tuple(band.getRegion()) for band in self.speed_bands if band.isVisible())
+                      if region[1] - region[0] > 1e-9)   # a single speed's band has no width: nothing drawn
+        self._static_changed((reference_key, self._x_range, design.isolation_percent, bands))
+
+    @staticmethod
+    def _set_data(item: pg.PlotDataItem, x: np.ndarray, y: np.ndarray) -> None:
+        """``setData`` unless the item already shows these points (duty markers rarely move)."""
+        shown_x, shown_y = item.getOriginalDataset()
+        if (shown_x is not None and shown_y is not None and np.array_equal(shown_x, x)
+                and np.array_equal(shown_y, y)):
+            return
+        item.setData(x, y)
 
     def _show_duty_in_legend(self, shown: bool) -> None:
         if shown != self._duty_in_legend:
@@ -312,6 +470,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         if self._legend_texts.get(index) != text:
             self._legend_texts[index] = text
             self.legend.items[index][1].setText(text)
+            self.legend.layout.activate()   # resize now: a posted layout request costs a second paint
 
     def _y_pos(self, value, scale: str, top: bool = False) -> float:
         """y position of a label: a value, or near the top of the axis."""

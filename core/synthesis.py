@@ -220,6 +220,11 @@ def synthesize(design: DesignInputs) -> DesignResult:
     else:
         damping_total = design.damping.value * stiffness / omega_low
     loads = mount_loads(design)
+    if np.min(loads) <= 0.0:
+        lifted = int(np.argmin(loads)) + 1
+        raise InputError("mounts.cg_offset_m",
+                         f"puts mount {lifted} in tension ({loads.min():.4g} N): every mount must carry load; "
+                         "move the centre of gravity towards the layout centre or widen the span", None)
     shares = loads / loads.sum()
 
     with np.errstate(divide="ignore", invalid="ignore"):  # undamped at resonance: refused just below
@@ -317,8 +322,6 @@ def _with_warnings(result: DesignResult, design: DesignInputs, loads: np.ndarray
         warnings.append(
             f"Per-mount loads differ by {spread:.3g} % of the mean (limit "
             f"{design.limits.max_load_spread_percent:g} %): choose mounts per position.")
-    if np.min(loads) <= 0.0:
-        warnings.append("A mount carries no load or is in tension: move the mounts or the centre of gravity.")
     return replace(result, warnings=tuple(warnings))
 
 

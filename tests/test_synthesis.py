@@ -188,3 +188,14 @@ def test_duty_speeds_are_each_evaluated_and_checked():
     assert result.to_json_dict()["duty_points"][1]["speed_rpm"] == 1200.0
     with pytest.raises(InputError, match="duty_speeds_rpm"):
         synthesize(DesignInputs(duty_speeds_rpm=(float("nan"),)))
+
+
+def test_offset_cg_that_lifts_a_mount_is_refused():
+    # Rigid-beam statics: 8 mounts in two rows of 4 over 2 m; an offset of 0.8 m along x (within 45 % of
+    # the span) gives R = W (1/8 + e x / Σx²) < 0 at x = −1 m (Σx² = 2·2·(1 + 1/9) m²).
+    design = DesignInputs(mass_kg=500, mount_count=8, load_layout="cg_offset", cg_offset_m=(0.8, 0.0),
+                          span_m=(2.0, 1.0))
+    assert 1 / 8 - 0.8 * 1.0 / (4 * (1 + 1 / 9)) < 0
+    with pytest.raises(InputError, match="in tension") as caught:
+        synthesize(design)
+    assert caught.value.field == "mounts.cg_offset_m"

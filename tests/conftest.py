@@ -13,6 +13,9 @@ from pathlib import Path
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
+# Autosave copies of test windows never go to the user's own recovery folder (subprocesses inherit it).
+import tempfile  # noqa: E402
+os.environ.setdefault("MOUNTSMITH_RECOVERY_DIR", tempfile.mkdtemp(prefix="mountsmith-test-recovery-"))
 
 import pytest  # noqa: E402
 

@@ -159,11 +159,14 @@ def linear_recursion(phi, drive, block: int = 256) -> np.ndarray:
     size = 2 * block
     kernel = np.fft.rfft(powers[:block], n=size, axis=0)                  # (f, 2, 2)
     spectra = np.fft.rfft(padded.reshape(blocks, block, 2), n=size, axis=1)  # (q, f, 2)
-    zero_state = np.fft.irfft(np.einsum("frc,qfc->qfr", kernel, spectra), n=size, axis=1)[:, :block]
+    products = np.empty_like(spectra)
+    for row in range(2):                                                   # 2x2 product, written out
+        products[..., row] = kernel[:, row, 0] * spectra[..., 0] + kernel[:, row, 1] * spectra[..., 1]
+    zero_state = np.fft.irfft(products, n=size, axis=1)[:, :block]
     carried = np.zeros((blocks, 2))                                        # state before each block
     for q in range(1, blocks):
         carried[q] = zero_state[q - 1, -1] + powers[block] @ carried[q - 1]
-    states = zero_state + np.einsum("jrc,qc->qjr", powers[1:], carried)
+    states = zero_state + (carried @ powers[1:].transpose(0, 2, 1)).transpose(1, 0, 2)  # Phi**(j+1) carried[q]
     return states.reshape(blocks * block, 2)[:count]
 
 

@@ -358,7 +358,8 @@ class RigidBodyEditor(StudyEditor):
         self.mount_table = QtWidgets.QTableWidget(0, len(MOUNT_COLUMNS))
         self.mount_table.setObjectName("mount_table")
         self.mount_table.verticalHeader().setDefaultSectionSize(22)
-        self.mount_table.horizontalHeader().setSectionResizeMode(QtWidgets.QHeaderView.ResizeMode.Stretch)
+        # Columns as wide as their numbers (the table scrolls sideways) rather than squeezed to "-1…".
+        self.mount_table.horizontalHeader().setSectionResizeMode(QtWidgets.QHeaderView.ResizeMode.ResizeToContents)
         self.mount_table.setMinimumHeight(110)
         self.mount_table.itemChanged.connect(self._cell_edited)
         self.mount_table.setHorizontalHeaderLabels([f"{name}\n{unit_symbol(kind, self.units)}"

@@ -22,7 +22,7 @@ from PySide6 import QtCore, QtWidgets
 import numpy as np
 import pyqtgraph as pg
 
-from app.style import CAUTION_STYLE, PALETTE
+from app.style import CAUTION_STYLE, PALETTE, style_axes
 from core.cautions import CAUTION_LINE
 from core.design_map import DesignMap
 
@@ -69,13 +69,10 @@ class DesignMapView(QtWidgets.QWidget):
         self.plot.setMenuEnabled(False)
         self.plot.hideButtons()
         self.plot.getViewBox().setMouseEnabled(x=False, y=False)
+        style_axes(self.plot)
         for name, label, unit in (("bottom", "Natural frequency on the mounts", "Hz"),
                                   ("left", "Damping ratio ζ", None)):
-            axis = self.plot.getAxis(name)
-            axis.setLogMode(True)
-            axis.enableAutoSIPrefix(False)
-            axis.setPen(PALETTE["foreground"])
-            axis.setTextPen(PALETTE["foreground"])
+            self.plot.getAxis(name).setLogMode(True)
             self.plot.setLabel(name, label, units=unit)
 
         colours = _colour_map()

@@ -14,7 +14,7 @@ from PySide6 import QtCore, QtWidgets
 
 import pyqtgraph as pg
 
-from app.style import FIELD_ERROR_STYLE, LINE_WIDTH, MARKER_SIZE, PALETTE
+from app.style import FIELD_ERROR_STYLE, LINE_WIDTH, MARKER_SIZE, PALETTE, style_axes
 from core.cautions import CAUTION_LINE
 from core.errors import InputError
 from core.floor import CriterionCheck, FloorSpectrum, parse_floor_rows
@@ -111,11 +111,7 @@ class FloorView(QtWidgets.QWidget):
         plot = self._plot.getPlotItem()
         plot.setLogMode(x=True, y=True)
         plot.showGrid(x=True, y=True, alpha=PALETTE["grid_alpha"])
-        for name in ("bottom", "left"):
-            axis = plot.getAxis(name)
-            axis.enableAutoSIPrefix(False)
-            axis.setPen(PALETTE["foreground"])
-            axis.setTextPen(PALETTE["foreground"])
+        style_axes(plot)
         plot.getAxis("bottom").setTicks(_log_ticks(_FREQUENCY_TICKS_HZ))
         plot.getAxis("left").setTicks(_log_ticks(
             _VELOCITY_DECADES_UM_S, [m * d for d in _VELOCITY_DECADES_UM_S for m in (2, 5)]))

@@ -13,7 +13,7 @@ from PySide6 import QtCore, QtWidgets
 
 import pyqtgraph as pg
 
-from app.style import CAUTION_STYLE, LINE_WIDTH, MARKER_SIZE, PALETTE
+from app.style import CAUTION_STYLE, LINE_WIDTH, MARKER_SIZE, PALETTE, style_axes
 from core.cautions import CAUTION_LINE
 from core.passage import PassageResult
 
@@ -59,11 +59,7 @@ class PassageView(QtWidgets.QWidget):
         plot.setMenuEnabled(False)
         plot.hideButtons()
         plot.showGrid(x=True, y=True, alpha=PALETTE["grid_alpha"])
-        for name in ("left", "bottom"):
-            axis = plot.getAxis(name)
-            axis.setPen(PALETTE["foreground"])
-            axis.setTextPen(PALETTE["foreground"])
-        plot.getAxis("bottom").enableAutoSIPrefix(False)       # r/min takes no prefix
+        style_axes(plot, no_prefix=("bottom",))                # r/min takes no prefix
         plot.setLabel("left", title, units=unit)                 # SI prefix chosen by the axis
         envelope = plot.plot(pen=pg.mkPen(PALETTE["design"], width=LINE_WIDTH["design"]))
         steady = plot.plot(pen=pg.mkPen(PALETTE["crossover"], width=LINE_WIDTH["crossover"],

@@ -25,7 +25,7 @@ from PySide6 import QtCore, QtGui, QtWidgets  # noqa: E402  (PySide6 before pyqt
 import numpy as np  # noqa: E402
 import pyqtgraph as pg  # noqa: E402
 
-from app.style import FONT_POINTS, LINE_WIDTH, MARKER_SIZE, PALETTE  # noqa: E402
+from app.style import FONT_POINTS, LINE_WIDTH, MARKER_SIZE, PALETTE, style_axes  # noqa: E402
 from core.curves import (  # noqa: E402
     X_AXIS_LABELS, curve_family, frequency_axis, magnitude_on_scale, operating_points,
     ratio_axis, ratio_from_axis, readout)
@@ -95,11 +95,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             plot.getViewBox().setMouseEnabled(x=False, y=False)
             plot.getViewBox().disableAutoRange()
             plot.showGrid(x=True, y=True, alpha=PALETTE["grid_alpha"])
-            for name in ("left", "bottom"):
-                axis = plot.getAxis(name)
-                axis.enableAutoSIPrefix(False)
-                axis.setTextPen(PALETTE["foreground"])
-                axis.setPen(PALETTE["foreground"])
+            style_axes(plot)
         self._style_axes()
 
         # ---- fixed items: isolation region, crossover lines, speed band, target line

@@ -25,7 +25,7 @@ from PySide6.QtWidgets import (
 
 import pyqtgraph as pg  # after PySide6, so that pyqtgraph binds to it
 
-from app.style import FONT_POINTS, PALETTE
+from app.style import FONT_POINTS, PALETTE, style_axes
 from core.cautions import CAUTION_LINE
 from core.errors import InputError
 from core.rigid_body import COORDINATES, Mount, RigidBody, RigidBodyModes, StaticLoads
@@ -90,11 +90,8 @@ class _LayoutPlot(pg.PlotWidget):
     def __init__(self, title: str, vertical_axis: str, length_symbol: str):
         super().__init__(background=PALETTE["background"])
         self.setTitle(title, color=PALETTE["foreground"], size=f"{FONT_POINTS + 1}pt")
+        style_axes(self)
         for side, name in (("bottom", "x"), ("left", vertical_axis)):
-            axis = self.getAxis(side)
-            axis.enableAutoSIPrefix(False)
-            axis.setPen(PALETTE["foreground"])
-            axis.setTextPen(PALETTE["foreground"])
             self.setLabel(side, f"{name} ({length_symbol})")
         self.showGrid(x=True, y=True, alpha=PALETTE["grid_alpha"])
         self.setAspectLocked(True)

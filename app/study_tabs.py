@@ -31,7 +31,7 @@ from app.passage_view import PassageView  # noqa: E402
 from app.rigid_body_view import RigidBodyView  # noqa: E402
 from app.studies_panel import (  # noqa: E402
     FloorEditor, MaterialEditor, PassageEditor, RigidBodyEditor, TwoStageEditor)
-from app.style import CAUTION_STYLE, LINE_WIDTH, PALETTE  # noqa: E402
+from app.style import CAUTION_STYLE, LINE_WIDTH, PALETTE, style_axes  # noqa: E402
 from core import rigid_body, studies  # noqa: E402
 from core.cautions import CAUTION_LINE  # noqa: E402
 from core.curves import curve_family  # noqa: E402
@@ -249,11 +249,7 @@ class StudyTabs(QtCore.QObject):
         plot.hideButtons()
         plot.setLogMode(x=True, y=True)
         plot.showGrid(x=True, y=True, alpha=PALETTE["grid_alpha"])
-        for name in ("left", "bottom"):
-            axis = plot.getAxis(name)
-            axis.enableAutoSIPrefix(False)
-            axis.setPen(PALETTE["foreground"])
-            axis.setTextPen(PALETTE["foreground"])
+        style_axes(plot)
         plot.setLabel("bottom", "Forcing frequency", units="Hz")
         plot.setLabel("left", "Force transmissibility |T|")
         legend = plot.addLegend(offset=(10, -10), brush=(255, 255, 255, 220), labelTextColor=PALETTE["foreground"])

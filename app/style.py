@@ -38,3 +38,17 @@ FONT_POINTS = 10
 #: Style sheet for the message shown beside a refused entry.
 FIELD_ERROR_STYLE = f"color: {PALETTE['error_text']};"
 CAUTION_STYLE = f"color: {PALETTE['caution_text']};"
+
+
+def style_axes(plot, names=("left", "bottom"), no_prefix=("left", "bottom")) -> None:
+    """Give a pyqtgraph plot's axes our look: foreground-coloured lines and text.
+
+    Axes named in ``no_prefix`` get no automatic SI prefix (set before their
+    labels, so a label never reads "x1e3"); the others keep it.
+    """
+    for name in names:
+        axis = plot.getAxis(name)
+        if name in no_prefix:
+            axis.enableAutoSIPrefix(False)
+        axis.setPen(PALETTE["foreground"])
+        axis.setTextPen(PALETTE["foreground"])

@@ -20,9 +20,9 @@ from core.errors import InputError
 from core.floor import CRITERIA, flat_floor_spectrum, floor_spectrum, parse_floor_csv
 from core.materials import MOUNT_MATERIALS
 from core.studies import (
-    AXES, FloorStudy, MountPlacement, PassageStudy, RigidBodyStudy, TwoStageStudy, default_rigid_body_study)
+    AXES, FloorStudy, PassageStudy, RigidBodyStudy, TwoStageStudy, default_rigid_body_study)
 from core.transmissibility import Damping
-from core.units import from_display, parse_display, parse_number, to_display, unit_symbol
+from core.units import from_display, parse_number, to_display, unit_symbol
 
 #: Starting floor level of a new floor study: flat 20 µm/s RMS per band (an invented, lively floor,
 #: above VC-C so that the mounts have work to do).

@@ -329,7 +329,7 @@ class StudyTabs(QtCore.QObject):
         self._timer.stop()
         self.update_count += 1
         project = self.model.project
-        design, result = project.design, self.model.result
+        result = self.model.result
         units = project.view.units
         for tab in self.tab_of.values():
             if hasattr(tab.editor, "refresh"):

@@ -16,7 +16,6 @@ from pathlib import Path
 
 import pytest
 
-from core import recovery as recovery_module
 from core.design import DesignInputs
 from core.errors import ProjectFileError
 from core.project import Project, load_project, save_project

@@ -25,7 +25,7 @@ import pytest  # noqa: E402
 
 from app import review_sheet  # noqa: E402
 from app.review_sheet import (  # noqa: E402
-    CONTENT_BOTTOM, CONTENT_TOP, FOOTER_TOP, PAGE_HEIGHT, Heading, Paragraphs, Rows, Table, sheet_content)
+    CONTENT_BOTTOM, CONTENT_TOP, FOOTER_TOP, PAGE_HEIGHT, Paragraphs, Rows, Table, sheet_content)
 from core.cautions import CAUTION_LINE, SAFETY_NOTES  # noqa: E402
 from core.errors import MountsmithError  # noqa: E402
 from core.evaluate import evaluate_project  # noqa: E402

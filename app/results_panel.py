@@ -3,10 +3,15 @@
 Every number is a field of :class:`core.synthesis.DesignResult`, converted by
 :func:`core.units.format_value`. When synthesis fails the core's message
 replaces the numbers.
+
+The values are :class:`ValueText` widgets, not QLabels: a QLabel asks its layout for a new
+geometry at every new text, and the scroll area around the panel then measures every
+word-wrapped row again (about 2 ms per slider step, measured). A ValueText asks only when
+its height at its width changes. The context menu copies all rows as text.
 """
 from __future__ import annotations
 
-from PySide6 import QtCore, QtWidgets
+from PySide6 import QtCore, QtGui, QtWidgets
 
 from app.design_panel import message_label
 from app.style import CAUTION_STYLE
@@ -37,6 +42,62 @@ ROWS = (
 )
 
 EXCITATION_ROWS = ("excitation_force", "transmitted_force", "transmitted_per_mount", "motion")
+
+
+class ValueText(QtWidgets.QWidget):
+    """One word-wrapped, plain-text result value.
+
+    It repaints itself for a new text and calls ``updateGeometry`` only when the text needs
+    another height at the current width. The width hint is fixed (``HINT_CHARACTERS``
+    average characters): the layout gives a value the width of its column anyway.
+    """
+
+    #: Width hint in average character widths.
+    HINT_CHARACTERS = 26
+    _FLAGS = int(QtCore.Qt.TextFlag.TextWordWrap) | int(QtCore.Qt.AlignmentFlag.AlignLeft) | \
+        int(QtCore.Qt.AlignmentFlag.AlignTop)
+
+    def __init__(self, text: str = "", parent=None):
+        super().__init__(parent)
+        self._text = text
+        policy = QtWidgets.QSizePolicy(QtWidgets.QSizePolicy.Policy.Preferred,
+                                       QtWidgets.QSizePolicy.Policy.Preferred)
+        policy.setHeightForWidth(True)
+        self.setSizePolicy(policy)
+
+    def text(self) -> str:
+        return self._text
+
+    def setText(self, text: str) -> None:  # noqa: N802 (Qt naming, as QLabel)
+        if text == self._text:
+            return
+        before = self.heightForWidth(self.width())
+        self._text = text
+        if self.heightForWidth(self.width()) != before or self.height() != before:
+            self.updateGeometry()
+        self.update()
+
+    def hasHeightForWidth(self) -> bool:  # noqa: N802
+        return True
+
+    def heightForWidth(self, width: int) -> int:  # noqa: N802
+        metrics = self.fontMetrics()
+        bounds = metrics.boundingRect(QtCore.QRect(0, 0, max(width, 1), 1 << 20), self._FLAGS, self._text)
+        return max(bounds.height(), metrics.height())
+
+    def sizeHint(self) -> QtCore.QSize:  # noqa: N802
+        width = self.fontMetrics().averageCharWidth() * self.HINT_CHARACTERS
+        return QtCore.QSize(width, self.heightForWidth(width))
+
+    def minimumSizeHint(self) -> QtCore.QSize:  # noqa: N802
+        metrics = self.fontMetrics()
+        return QtCore.QSize(metrics.averageCharWidth() * 8, metrics.height())
+
+    def paintEvent(self, _event) -> None:  # noqa: N802
+        painter = QtGui.QPainter(self)
+        painter.setPen(self.palette().color(QtGui.QPalette.ColorRole.WindowText))
+        painter.drawText(self.rect(), self._FLAGS, self._text)
+        painter.end()
 
 
 def result_texts(design: DesignInputs, evaluation: Evaluation, system: str) -> dict[str, str]:
@@ -98,14 +159,12 @@ class ResultsPanel(QtWidgets.QWidget):
         form.setVerticalSpacing(4)
         form.setRowWrapPolicy(QtWidgets.QFormLayout.RowWrapPolicy.WrapLongRows)
         form.setFieldGrowthPolicy(QtWidgets.QFormLayout.FieldGrowthPolicy.AllNonFixedFieldsGrow)
-        self.value_labels: dict[str, QtWidgets.QLabel] = {}
+        self.value_labels: dict[str, ValueText] = {}
         self.row_labels: dict[str, QtWidgets.QLabel] = {}
         for key, text in ROWS:
             label = QtWidgets.QLabel(text)
-            value = QtWidgets.QLabel("—")
+            value = ValueText("—")
             value.setObjectName(f"result_{key}")
-            value.setWordWrap(True)
-            value.setTextInteractionFlags(QtCore.Qt.TextInteractionFlag.TextSelectableByMouse)
             form.addRow(label, value)
             self.value_labels[key] = value
             self.row_labels[key] = label
@@ -121,7 +180,7 @@ class ResultsPanel(QtWidgets.QWidget):
         outer.addWidget(self.study_table)
         self.study_title.setVisible(False)
         self.study_table.setVisible(False)
-        self.study_value_labels: dict[str, QtWidgets.QLabel] = {}
+        self.study_value_labels: dict[str, ValueText] = {}
         self._study_rows: list = []
         self._design_warnings: tuple = ()
         self._study_warnings: tuple = ()
@@ -137,6 +196,20 @@ class ResultsPanel(QtWidgets.QWidget):
         self.caution_label.setWordWrap(True)
         self.caution_label.setStyleSheet(CAUTION_STYLE)
         outer.addWidget(self.caution_label)
+        self.setContextMenuPolicy(QtCore.Qt.ContextMenuPolicy.ActionsContextMenu)
+        copy = QtGui.QAction("Copy results", self)
+        copy.triggered.connect(lambda: QtWidgets.QApplication.clipboard().setText(self.as_text()))
+        self.addAction(copy)
+
+    def as_text(self) -> str:
+        """The shown rows, study rows and warnings as plain text, one ``label: value`` a line."""
+        lines = [self.error_label.text()] if self.error_label.isVisibleTo(self) else []
+        if self.table.isVisibleTo(self):
+            lines += [f"{self.row_labels[key].text()}: {label.text()}".replace("\n", " ")
+                      for key, label in self.value_labels.items() if label.isVisibleTo(self)]
+        lines += [f"{label}: {text}" for label, text in self._study_rows]
+        lines += ["Warnings:", self.warnings_label.text(), self.caution_label.text()]
+        return "\n".join(lines)
 
     def show_evaluation(self, design: DesignInputs, evaluation: Evaluation, system: str) -> None:
         """Show a result, or the core's message in place of the numbers."""
@@ -176,9 +249,7 @@ class ResultsPanel(QtWidgets.QWidget):
                 self.study_form.removeRow(0)
             self.study_value_labels = {}
             for label, text in rows:
-                value = QtWidgets.QLabel(text)
-                value.setWordWrap(True)
-                value.setTextInteractionFlags(QtCore.Qt.TextInteractionFlag.TextSelectableByMouse)
+                value = ValueText(text)
                 self.study_form.addRow(QtWidgets.QLabel(label), value)
                 self.study_value_labels[label] = value
         self.study_title.setVisible(bool(rows))
@@ -189,6 +260,3 @@ class ResultsPanel(QtWidgets.QWidget):
     def _show_warnings(self) -> None:
         warnings = self._design_warnings + self._study_warnings
         self.warnings_label.setText("\n".join(f"• {w}" for w in warnings) if warnings else "none")
-        # Wrapped rows may need more lines than before: recompute the row heights for the new texts.
-        for layout in (self.table.layout(), self.study_form, self.layout()):
-            layout.invalidate()

@@ -10,9 +10,11 @@ evaluate_passage, build_rigid_body, evaluate_rigid_body, floor_check,
 evaluate_two_stage, two_stage_curves, design_map_of, design_at_map_point),
 ``core.rigid_body`` and ``core.transmissibility``. Results are cached by their
 inputs, so a study is recomputed only when the design or the study changed;
-the updates are coalesced by a short single-shot timer (a slider drag redraws
-the plots at every step and the studies at most every ``STUDY_DELAY_MS``). Only
-the shown tab is drawn.
+the updates wait for a pause: a slider drag redraws the plots at every step and
+the studies once the edits stop for ``STUDY_DELAY_MS``, or at the latest
+``STUDY_MAX_WAIT_MS`` after the first edit of a burst (the start-and-stop
+simulations alone cost about 25 ms, more than a frame). Only the shown tab is
+drawn.
 """
 from __future__ import annotations
 
@@ -39,8 +41,10 @@ from core.errors import MountsmithError  # noqa: E402
 from core.transmissibility import damping_with_same_peak  # noqa: E402
 from core.units import format_value  # noqa: E402
 
-#: Delay that gathers bursts of edits into one study update (ms).
-STUDY_DELAY_MS = 120
+#: Pause after the last edit before the studies update (ms).
+STUDY_DELAY_MS = 150
+#: Longest wait from the first edit of an uninterrupted burst to a study update (ms).
+STUDY_MAX_WAIT_MS = 1000
 #: Width of the editor column of a study tab (px).
 EDITOR_WIDTH = 330
 
@@ -149,6 +153,7 @@ class StudyTabs(QtCore.QObject):
         self._timer.setSingleShot(True)
         self._timer.setInterval(STUDY_DELAY_MS)
         self._timer.timeout.connect(self.refresh_now)
+        self._burst = QtCore.QElapsedTimer()   # time since the first edit the timer waits for
         self.update_count = 0
 
         model = self.model
@@ -270,13 +275,16 @@ class StudyTabs(QtCore.QObject):
 
     # ------------------------------------------------------------------ scheduling
     def schedule(self) -> None:
-        """Update the studies soon; edits arriving before the timer fires join that one update.
+        """Update the studies after a pause in the edits (see the module docstring).
 
         The comparison curve is redrawn at once, with the design curve it sits beside.
         """
         self.refresh_comparison()
         if not self._timer.isActive():
+            self._burst.start()
             self._timer.start()
+        elif self._burst.elapsed() + STUDY_DELAY_MS <= STUDY_MAX_WAIT_MS:
+            self._timer.start()            # restart: wait for the pause
 
     @property
     def pending(self) -> bool:

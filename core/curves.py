@@ -13,7 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from core.transmissibility import (
-    Damping, frequency_response, transmissibility_db)
+    Damping, frequency_response, transmissibility_db, transmissibility_peak)
 
 
 @dataclass(frozen=True)
@@ -66,7 +66,16 @@ RATIO_GRID = LogGrid(0.1, 10.0, 400)
 
 #: Plotted frequency ratio range; the default view is 0.1 to 10.
 PLOT_RATIO_RANGE = (0.05, 100.0)
+#: Points of the shared grid (CSV export, comparisons).
 PLOT_POINTS = 700
+#: Points of the even part of a drawn curve's grid over PLOT_RATIO_RANGE (about 4 px apart
+#: over the default two visible decades of a 600 px plot).
+DRAWN_POINTS = 200
+#: Extra points of a drawn curve across its resonance.
+RESONANCE_POINTS = 80
+#: Half-width of the dense resonance band in units of the equivalent damping ratio
+#: (zeta, or eta / 2): the half-power band is about +-1 of them.
+RESONANCE_HALF_WIDTH = 12.0
 
 
 def ratio_axis(low: float = PLOT_RATIO_RANGE[0], high: float = PLOT_RATIO_RANGE[1],
@@ -77,6 +86,28 @@ def ratio_axis(low: float = PLOT_RATIO_RANGE[0], high: float = PLOT_RATIO_RANGE[
     """
     points = points + (points % 2)
     return np.geomspace(low, high, points)
+
+
+def resonance_ratio_axis(damping: Damping, low: float = PLOT_RATIO_RANGE[0],
+                         high: float = PLOT_RATIO_RANGE[1], points: int = DRAWN_POINTS,
+                         resonance_points: int = RESONANCE_POINTS) -> np.ndarray:
+    """Sorted frequency ratios for drawing one damping's curve: even on a log scale, dense
+    across its resonance, with the exact peak of abs T on the grid.
+
+    The dense band spans ``r_peak / (1 + w)`` to ``r_peak * (1 + w)`` with
+    ``w = RESONANCE_HALF_WIDTH * zeta_equivalent``, so even zeta = 0.005 (peak half-power
+    width about 0.01 in r) gets tens of points across its peak, where an even 700-point grid
+    has one. Without damping the band is left out and the grid keeps off r = 1.
+    """
+    grid = ratio_axis(low, high, points)
+    if damping.value > 0.0:
+        equivalent = damping.value if damping.model == "viscous" else damping.value / 2.0
+        peak = transmissibility_peak(damping).ratio
+        spread = 1.0 + RESONANCE_HALF_WIDTH * equivalent
+        band = peak * np.geomspace(1.0 / spread, spread, resonance_points)
+        grid = np.union1d(grid, np.append(band, peak))
+        grid = grid[(grid >= low) & (grid <= high)]
+    return grid
 
 
 @dataclass(frozen=True)
@@ -106,15 +137,27 @@ class Curve:
     current: bool = False
 
 
+def _members(damping: Damping, reference_values) -> list[tuple[Damping, bool]]:
+    """The current damping first (True), then each reference value in the same model (False)."""
+    return [(Damping(damping.model, damping.value), True)] + [
+        (Damping(damping.model, float(v)), False) for v in reference_values]
+
+
+def _curve(damping: Damping, ratio: np.ndarray, current: bool) -> Curve:
+    response = frequency_response(ratio, damping)
+    return Curve(damping.label, damping, ratio, response.magnitude, response.phase_deg, current)
+
+
 def curve_family(damping: Damping, reference_values=(), ratio=None) -> tuple[Curve, ...]:
-    """The current curve first, then one reference curve per value in the same damping model."""
+    """The current curve first, then one reference curve per value, all on one ``ratio`` grid."""
     ratio = ratio_axis() if ratio is None else np.asarray(ratio, dtype=float)
-    curves = []
-    for value, current in [(damping.value, True)] + [(float(v), False) for v in reference_values]:
-        this = Damping(damping.model, value)
-        response = frequency_response(ratio, this)
-        curves.append(Curve(this.label, this, ratio, response.magnitude, response.phase_deg, current))
-    return tuple(curves)
+    return tuple(_curve(this, ratio, current) for this, current in _members(damping, reference_values))
+
+
+def drawn_curve_family(damping: Damping, reference_values=()) -> tuple[Curve, ...]:
+    """As :func:`curve_family`, each curve on its own :func:`resonance_ratio_axis` (for drawing)."""
+    return tuple(_curve(this, resonance_ratio_axis(this), current)
+                 for this, current in _members(damping, reference_values))
 
 
 def magnitude_on_scale(magnitude, scale: str):

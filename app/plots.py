@@ -27,7 +27,7 @@ import pyqtgraph as pg  # noqa: E402
 
 from app.style import FONT_POINTS, LINE_WIDTH, MARKER_SIZE, PALETTE, style_axes  # noqa: E402
 from core.curves import (  # noqa: E402
-    X_AXIS_LABELS, curve_family, frequency_axis, magnitude_on_scale, operating_points,
+    X_AXIS_LABELS, drawn_curve_family, frequency_axis, magnitude_on_scale, operating_points,
     ratio_axis, ratio_from_axis, readout)
 from core.design import DesignInputs  # noqa: E402
 from core.design_model import Evaluation  # noqa: E402
@@ -50,6 +50,60 @@ RATIO_VIEW_WIDE = (0.1, 100.0)
 def _lx(value: float) -> float:
     """Position on a log10 axis."""
     return math.log10(value)
+
+
+class PointMarkers:
+    """Up to ``count`` symbols on one plot, each a one-point item moved with ``setPos``.
+
+    New data on a scatter item re-renders its symbols (about 0.25 ms an item, measured); a
+    move is only a new transform, and an item cached as a pixmap keeps its pixmap.
+
+    Attributes
+    ----------
+    items : list of pg.PlotDataItem
+        Their data is the log origin; their position is the point (log10 where the axis is).
+    """
+
+    def __init__(self, plot: pg.PlotItem, count: int, z: float, cached: bool, **style):
+        self.items = [plot.plot(**style) for _ in range(count)]
+        for item in self.items:
+            item.setZValue(z)
+            item.setVisible(False)
+            # No itemChange round trip to pyqtgraph per move (0.2 ms each, measured): the axis
+            # ranges are fixed, so the view need not hear of the markers' bounds.
+            item.setFlag(QtWidgets.QGraphicsItem.GraphicsItemFlag.ItemSendsGeometryChanges, False)
+            if cached:
+                item.scatter.setCacheMode(QtWidgets.QGraphicsItem.CacheMode.DeviceCoordinateCache)
+        self._log_y = None
+        self._points = (np.empty(0), np.empty(0))
+
+    def set_points(self, x, y, log_y: bool) -> None:
+        """Show markers at data points ``x``, ``y`` (x on a log axis; y on one when ``log_y``).
+
+        Points beyond ``count``, or not finite and positive where the axis is logarithmic, are
+        not drawn.
+        """
+        x = np.asarray(x, dtype=float)
+        y = np.asarray(y, dtype=float)
+        if log_y != self._log_y:
+            self._log_y = log_y
+            for item in self.items:
+                item.setData([1.0], [1.0 if log_y else 0.0])   # the origin of the item's own axes
+        shown_x, shown_y = [], []
+        for i, item in enumerate(self.items):
+            ok = bool(i < len(x) and math.isfinite(x[i]) and x[i] > 0.0 and math.isfinite(y[i]) and (
+                y[i] > 0.0 or not log_y))
+            if ok:   # Qt's own setPos: PlotDataItem's re-sends the data to its symbols at every move
+                QtWidgets.QGraphicsObject.setPos(item, math.log10(x[i]), math.log10(y[i]) if log_y else float(y[i]))
+                shown_x.append(float(x[i]))
+                shown_y.append(float(y[i]))
+            if item.isVisible() != ok:
+                item.setVisible(ok)
+        self._points = (np.array(shown_x), np.array(shown_y))
+
+    def points(self) -> tuple[np.ndarray, np.ndarray]:
+        """The shown points in data units (x, y), as given to :meth:`set_points`."""
+        return self._points
 
 
 class TransmissibilityPlots(pg.GraphicsLayoutWidget):
@@ -149,10 +203,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         marker = dict(pen=None, symbol="o", symbolSize=MARKER_SIZE * self.scale,
                       symbolBrush=PALETTE["operating"],
                       symbolPen=pg.mkPen(PALETTE["foreground"], width=1.0 * self.scale))
-        self.operating_magnitude = self.magnitude_plot.plot(**marker)
-        self.operating_phase = self.phase_plot.plot(**marker)
-        self.operating_magnitude.setZValue(20)
-        self.operating_phase.setZValue(20)
+        # One marker at the lowest operating speed, a second at the highest of a range.
+        self.operating_magnitude = PointMarkers(self.magnitude_plot, 2, 20, interactive, **marker)
+        self.operating_phase = PointMarkers(self.phase_plot, 2, 20, interactive, **marker)
         duty = dict(pen=None, symbol="d", symbolSize=MARKER_SIZE * self.scale, symbolBrush=PALETTE["background"],
                     symbolPen=pg.mkPen(PALETTE["operating"], width=2.0 * self.scale))
         self.duty_magnitude = self.magnitude_plot.plot(**duty)
@@ -167,7 +220,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.legend.setParentItem(self.magnitude_plot.getViewBox())
         self.legend.addItem(self.design_magnitude, "design")
         self.legend.addItem(self.reference_magnitude[0], "reference")
-        self.legend.addItem(self.operating_magnitude, "operating point")
+        self.legend.addItem(self.operating_magnitude.items[0], "operating point")
         self.legend.addItem(pg.PlotDataItem(pen=self._pen("target", QtCore.Qt.PenStyle.DashDotLine)), "target")
         self._legend_texts = {}
 
@@ -193,12 +246,32 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.layer_renders = 0
         if self._layered:
             self.setCacheMode(QtWidgets.QGraphicsView.CacheModeFlag.CacheNone)  # the layers are the cache
+            self._cache_rarely_changed()
+
+    def _cache_rarely_changed(self) -> None:
+        """Interactive plots: the legend (with its texts) and the duty markers paint from a pixmap.
+
+        They are live items, painted at every frame, but change far less often than the design
+        curve: Qt re-renders such an item only after its own ``update`` (a new legend text, new
+        duty points). Exports keep painting every item directly (vector output).
+        """
+        if not self._layered:
+            return
+        cached = QtWidgets.QGraphicsItem.CacheMode.DeviceCoordinateCache
+        items, index = [self.legend], 0
+        while index < len(items):            # the legend and everything inside it
+            items += items[index].childItems()
+            index += 1
+        for item in items + [self.duty_magnitude.scatter, self.duty_phase.scatter]:
+            if item.cacheMode() != cached:
+                item.setCacheMode(cached)
 
     # ------------------------------------------------------------------ layered painting
     def _live_items(self) -> list:
         """Items that change during a slider drag; painted every frame between the two layers."""
-        items = [self.design_magnitude, self.design_phase, self.operating_magnitude, self.operating_phase,
-                 self.duty_magnitude, self.duty_phase, self.legend, *self.crosshair_lines]
+        items = [self.design_magnitude, self.design_phase, *self.operating_magnitude.items,
+                 *self.operating_phase.items, self.duty_magnitude, self.duty_phase, self.legend,
+                 *self.crosshair_lines]
         if getattr(self, "comparison_magnitude", None) is not None:
             items += [self.comparison_magnitude, self.comparison_phase]
         return items
@@ -372,9 +445,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
                          None if x_axis == "ratio" else natural_hz)
         same_references = reference_key == self._reference_key
         self._reference_key = reference_key
-        curves = curve_family(damping, () if same_references else view.reference_damping, self.ratio)
-        x = x_of(self.ratio)
+        curves = drawn_curve_family(damping, () if same_references else view.reference_damping)
         design_curve = curves[0]
+        x = x_of(design_curve.ratio)
         self.design_magnitude.setData(x, y_of(design_curve.magnitude))
         self.design_phase.setData(x, design_curve.phase_deg)
         references = curves[1:]
@@ -385,12 +458,13 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             if not visible:
                 continue
             curve = references[i]
-            self.reference_magnitude[i].setData(x, y_of(curve.magnitude))
-            self.reference_phase[i].setData(x, curve.phase_deg)
+            curve_x = x_of(curve.ratio)
+            self.reference_magnitude[i].setData(curve_x, y_of(curve.magnitude))
+            self.reference_phase[i].setData(curve_x, curve.phase_deg)
             top = int(curve.magnitude.argmax())
             peak_y = float(y_of(curve.magnitude[top]))
-            self._set_text(self.reference_labels[i], curve.label,
-                           _lx(float(x[top]) * 1.06), _lx(peak_y) if view.magnitude_scale == "ratio" else peak_y)
+            self._set_text(self.reference_labels[i], curve.label, _lx(float(curve_x[top]) * 1.06),
+                           _lx(peak_y) if view.magnitude_scale == "ratio" else peak_y)
 
         crossover = float(x_of(CROSSOVER_RATIO))
         right = _lx(float(x_of(self.ratio[-1])))
@@ -412,8 +486,8 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         if result is not None:
             points = operating_points(result.frequency_ratio, result.frequency_ratio_max, damping)
             px = x_of(points.ratio)
-            self.operating_magnitude.setData(px, y_of(points.magnitude))
-            self.operating_phase.setData(px, points.phase_deg)
+            self.operating_magnitude.set_points(px, y_of(points.magnitude), view.magnitude_scale == "ratio")
+            self.operating_phase.set_points(px, points.phase_deg, False)
             for band in self.speed_bands:
                 if points.band is None:
                     band.setVisible(False)
@@ -427,7 +501,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             self._set_data(self.duty_phase, dx, np.array([point.phase_deg for point in duty], dtype=float))
             self._show_duty_in_legend(bool(duty))
         else:
-            for item in (self.operating_magnitude, self.operating_phase, self.duty_magnitude, self.duty_phase):
+            for markers in (self.operating_magnitude, self.operating_phase):
+                markers.set_points((), (), False)
+            for item in (self.duty_magnitude, self.duty_phase):
                 self._set_data(item, np.empty(0), np.empty(0))
             for band in self.speed_bands:
                 band.setVisible(False)
@@ -454,6 +530,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             self._duty_in_legend = shown
             if shown:
                 self.legend.addItem(self.duty_magnitude, "duty speeds")
+                self._cache_rarely_changed()
             else:
                 self.legend.removeItem(self.duty_magnitude)
 
@@ -548,6 +625,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             if self._comparison_label is not None:
                 self.legend.removeItem(self.comparison_magnitude)
             self.legend.addItem(self.comparison_magnitude, label)
+            self._cache_rarely_changed()
             self._comparison_label = label
 
     # ------------------------------------------------------------------ crosshair

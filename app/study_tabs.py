@@ -36,7 +36,7 @@ from app.studies_panel import (  # noqa: E402
 from app.style import CAUTION_STYLE, LINE_WIDTH, PALETTE, style_axes  # noqa: E402
 from core import rigid_body, studies  # noqa: E402
 from core.cautions import CAUTION_LINE  # noqa: E402
-from core.curves import curve_family  # noqa: E402
+from core.curves import drawn_curve_family  # noqa: E402
 from core.errors import MountsmithError  # noqa: E402
 from core.transmissibility import damping_with_same_peak  # noqa: E402
 from core.units import format_value  # noqa: E402
@@ -626,7 +626,7 @@ class StudyTabs(QtCore.QObject):
         if self.material.compare_check.isChecked():
             try:
                 other = damping_with_same_peak(design.damping)
-                curve = curve_family(other, (), self.window.plots.ratio)[0]
+                curve = drawn_curve_family(other)[0]
             except MountsmithError as error:
                 note = str(error)
         self.window.plots.show_comparison(curve)

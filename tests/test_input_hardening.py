@@ -299,5 +299,5 @@ def test_extreme_valid_designs_in_the_window(main_window, zeta, ratio):
     x, y = window.plots.design_magnitude.getOriginalDataset()
     expected_curve = np.sqrt((1 + (2 * zeta * x) ** 2) / ((1 - x * x) ** 2 + (2 * zeta * x) ** 2))
     assert np.allclose(y, expected_curve, rtol=1e-12)
-    px, py = window.plots.operating_magnitude.getOriginalDataset()
+    px, py = window.plots.operating_magnitude.points()
     assert px[0] == pytest.approx(ratio) and py[0] == pytest.approx(expected, rel=1e-12)

@@ -88,10 +88,19 @@ def test_window_opens_demo_project_and_shows_core_results(main_window, qtbot, pa
         want = 20.0 * np.log10(want)
     np.testing.assert_allclose(y, want, rtol=1e-9, atol=1e-9)
     # Operating point on the curve at the design ratio.
-    _, marker_y = curve_xy(window.plots.operating_magnitude)
+    _, marker_y = window.plots.operating_magnitude.points()
     t_low = float(closed_form_magnitude(expected.frequency_ratio, damping.model, damping.value))
     first = marker_y[0] if project.view.magnitude_scale == "ratio" else 10 ** (marker_y[0] / 20.0)
     assert first == pytest.approx(t_low, rel=1e-9)
+    # The symbol is drawn there: its item sits at the point in the view's (log10) coordinates.
+    marker = window.plots.operating_magnitude.items[0]
+    assert marker.isVisible()
+    at = marker.mapToView(QtCore.QPointF(0.0, 0.0))   # its one data point, as the view maps it
+    x_shown = expected.frequency_ratio * (1.0 if window.plots._x_axis == "ratio" else
+                                          expected.natural_frequency_hz * (60.0 if window.plots._x_axis == "rpm" else 1.0))
+    assert at.x() == pytest.approx(math.log10(x_shown), abs=1e-9)
+    y_shown = math.log10(t_low) if project.view.magnitude_scale == "ratio" else 20.0 * math.log10(t_low)
+    assert at.y() == pytest.approx(y_shown, abs=1e-9)
     assert window.caution_label.isVisible() and "licensed engineer" in window.caution_label.text()
     panel = window.design_panel
     assert panel.tuning_combo.currentData() == project.design.tuning
@@ -146,7 +155,7 @@ def test_ratio_slider_moves_natural_frequency_and_every_result(main_window, qtbo
         assert labels["static_deflection"].text() == f"{deflection_mm:.4g} mm"
         k_total = design.mass_kg * (2 * math.pi * fn) ** 2  # k = m ωn²
         assert labels["stiffness_total"].text() == f"{k_total / 1e3:.4g} N/mm"
-        _, marker_y = curve_xy(window.plots.operating_magnitude)
+        _, marker_y = window.plots.operating_magnitude.points()
         t = float(closed_form_magnitude(ratio, design.damping.model, design.damping.value))
         shown = marker_y[0] if window.model.view.magnitude_scale == "ratio" else 10 ** (marker_y[0] / 20)
         assert shown == pytest.approx(t, rel=1e-9)
@@ -278,8 +287,8 @@ def test_unreachable_target_shows_message_not_numbers(main_window, qtbot):
     error = window.results.error_label
     assert error.isVisible() and "beyond the supported" in error.text()
     assert not window.results.table.isVisible()
-    assert window.plots.operating_magnitude.getOriginalDataset()[0] is None or \
-        len(window.plots.operating_magnitude.getOriginalDataset()[0]) == 0
+    assert len(window.plots.operating_magnitude.points()[0]) == 0
+    assert not any(item.isVisible() for item in window.plots.operating_magnitude.items)
 
 
 def test_excitation_gives_transmitted_force(main_window, qtbot):
@@ -433,7 +442,7 @@ def test_db_scale_and_absolute_frequency_axis(main_window, qtbot):
     fn_rpm = synthesize(window.model.design).natural_frequency_rpm
     x2, _ = curve_xy(window.plots.design_magnitude)
     np.testing.assert_allclose(x2, x * fn_rpm, rtol=1e-12)
-    marker_x, _ = curve_xy(window.plots.operating_magnitude)
+    marker_x, _ = window.plots.operating_magnitude.points()
     assert marker_x[0] == pytest.approx(window.model.design.speed_rpm, rel=1e-12)
     # The √2 line sits at √2 fn (log10 position on the log axis).
     assert window.plots.crossover_lines[0].value() == pytest.approx(math.log10(math.sqrt(2) * fn_rpm))

@@ -413,9 +413,16 @@ def _free_motion_error(free_shapes: np.ndarray, cg_m: np.ndarray) -> InputError:
 
 
 def _solve_modes(stiffness: np.ndarray, mass: np.ndarray, cg_m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """``eigh(K, M)``; InputError naming the free motions if K leaves any unresisted."""
-    import scipy.linalg  # imported here: scipy loads in ~0.2 s, kept off the window's start-up
-    eigenvalues, shapes = scipy.linalg.eigh(stiffness, mass)
+    """``eigh(K, M)``; InputError naming the free motions if K leaves any unresisted.
+
+    Solved as the standard problem of L^-1 K L^-T with M = L L^T (numpy only; the tests check
+    it against ``scipy.linalg.eigh``): shapes come out mass-normalised, S^T M S = I.
+    """
+    lower = np.linalg.cholesky(mass)
+    inverse = np.linalg.inv(lower)
+    reduced = inverse @ stiffness @ inverse.T
+    eigenvalues, vectors = np.linalg.eigh((reduced + reduced.T) / 2.0)
+    shapes = inverse.T @ vectors
     free = eigenvalues <= _FREE_MOTION_RELATIVE * max(eigenvalues[-1], 0.0)
     if np.any(free):
         raise _free_motion_error(shapes[:, free], cg_m)
@@ -550,8 +557,7 @@ def static_loads(body: RigidBody, mounts: Sequence[Mount], g=STANDARD_GRAVITY) -
     _solve_modes(stiffness, mass, body.cg_m)
     weight = body.mass_kg * gravity
     load = np.array([0.0, 0.0, -weight, 0.0, 0.0, 0.0])
-    import scipy.linalg  # imported here: scipy loads in ~0.2 s, kept off the window's start-up
-    displacement = scipy.linalg.solve(stiffness, load, assume_a="sym")
+    displacement = np.linalg.solve(stiffness, load)
     deflection = _arm_matrices(mounts, body.cg_m) @ displacement
     matrices = np.array([mount.stiffness_matrix_n_per_m for mount in mounts])
     force = np.einsum("nab,nb->na", matrices, deflection)

@@ -60,6 +60,7 @@ class ValueText(QtWidgets.QWidget):
     def __init__(self, text: str = "", parent=None):
         super().__init__(parent)
         self._text = text
+        self._height_for = None    # (text, width, font key), height
         policy = QtWidgets.QSizePolicy(QtWidgets.QSizePolicy.Policy.Preferred,
                                        QtWidgets.QSizePolicy.Policy.Preferred)
         policy.setHeightForWidth(True)
@@ -81,9 +82,12 @@ class ValueText(QtWidgets.QWidget):
         return True
 
     def heightForWidth(self, width: int) -> int:  # noqa: N802
-        metrics = self.fontMetrics()
-        bounds = metrics.boundingRect(QtCore.QRect(0, 0, max(width, 1), 1 << 20), self._FLAGS, self._text)
-        return max(bounds.height(), metrics.height())
+        key = (self._text, width, self.font().key())
+        if self._height_for is None or self._height_for[0] != key:   # layouts ask many times
+            metrics = self.fontMetrics()
+            bounds = metrics.boundingRect(QtCore.QRect(0, 0, max(width, 1), 1 << 20), self._FLAGS, self._text)
+            self._height_for = (key, max(bounds.height(), metrics.height()))
+        return self._height_for[1]
 
     def sizeHint(self) -> QtCore.QSize:  # noqa: N802
         width = self.fontMetrics().averageCharWidth() * self.HINT_CHARACTERS

@@ -21,7 +21,6 @@ from PySide6 import QtCore, QtGui, QtWidgets  # noqa: E402  (PySide6 before pyqt
 from app.design_panel import DesignPanel, OperatingPointControls  # noqa: E402
 from app.plots import TransmissibilityPlots  # noqa: E402
 from app.results_panel import ResultsPanel  # noqa: E402
-from app.review_sheet import export_review_sheet  # noqa: E402
 from app.studies_panel import default_floor_study  # noqa: E402
 from app.study_tabs import StudyTabs  # noqa: E402
 from app.settings import APPLICATION, ORGANIZATION, AppSettings  # noqa: E402
@@ -159,7 +158,7 @@ class MainWindow(QtWidgets.QMainWindow):
         self._view_changed(self.model.view)
         self._update_title()
         self._update_undo_actions(self.model.can_undo, self.model.can_redo)
-        self.refresh_now()
+        self.schedule_redraw()   # drawn when the event loop starts, unless a file opens first
 
     # ------------------------------------------------------------------ extension points
     def add_analysis_view(self, widget: QtWidgets.QWidget, title: str) -> int:
@@ -457,6 +456,7 @@ class MainWindow(QtWidgets.QMainWindow):
             return False
         source = Path(self.model.path).name if self.model.path else None
         try:
+            from app.review_sheet import export_review_sheet  # imported here: 25 ms off the start-up
             export_review_sheet(self.model.project, path, source)
         except MountsmithError as error:
             self.show_error("Cannot export review sheet", str(error))

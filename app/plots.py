@@ -138,8 +138,8 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.ci.layout.setContentsMargins(*(4 * self.scale,) * 4)
         self.ci.layout.setVerticalSpacing(6 * self.scale)
 
-        self.magnitude_plot = self.addPlot(row=0, col=0)
-        self.phase_plot = self.addPlot(row=1, col=0)
+        self.magnitude_plot = self.addPlot(row=0, col=0, enableMenu=False)
+        self.phase_plot = self.addPlot(row=1, col=0, enableMenu=False)
         self.ci.layout.setRowStretchFactor(0, 3)
         self.ci.layout.setRowStretchFactor(1, 2)
         self.phase_plot.setXLink(self.magnitude_plot)
@@ -188,13 +188,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.reference_magnitude = []
         self.reference_phase = []
         self.reference_labels = []
-        for _ in range(MAX_REFERENCE_CURVES):
-            self.reference_magnitude.append(self.magnitude_plot.plot(pen=self._pen("reference")))
-            self.reference_phase.append(self.phase_plot.plot(pen=self._pen("reference")))
-            label = pg.TextItem("", color=PALETTE["reference"], anchor=(0.0, 0.5))
-            label.setFont(self._font(0.8))
-            self.magnitude_plot.addItem(label, ignoreBounds=True)
-            self.reference_labels.append(label)
+        self._add_reference_items(1)   # the legend's sample; more as the family needs them
         self.design_magnitude = self.magnitude_plot.plot(pen=self._pen("design"))
         self.design_phase = self.phase_plot.plot(pen=self._pen("design"))
         for item in (self.design_magnitude, self.design_phase):
@@ -265,6 +259,16 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         for item in items + [self.duty_magnitude.scatter, self.duty_phase.scatter]:
             if item.cacheMode() != cached:
                 item.setCacheMode(cached)
+
+    def _add_reference_items(self, count: int) -> None:
+        """Have at least ``count`` (at most MAX_REFERENCE_CURVES) reference curves and labels."""
+        while len(self.reference_magnitude) < min(count, MAX_REFERENCE_CURVES):
+            self.reference_magnitude.append(self.magnitude_plot.plot(pen=self._pen("reference")))
+            self.reference_phase.append(self.phase_plot.plot(pen=self._pen("reference")))
+            label = pg.TextItem("", color=PALETTE["reference"], anchor=(0.0, 0.5))
+            label.setFont(self._font(0.8))
+            self.magnitude_plot.addItem(label, ignoreBounds=True)
+            self.reference_labels.append(label)
 
     # ------------------------------------------------------------------ layered painting
     def _live_items(self) -> list:
@@ -451,7 +455,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.design_magnitude.setData(x, y_of(design_curve.magnitude))
         self.design_phase.setData(x, design_curve.phase_deg)
         references = curves[1:]
-        for i in range(MAX_REFERENCE_CURVES if not same_references else 0):
+        if not same_references:
+            self._add_reference_items(len(references))
+        for i in range(len(self.reference_magnitude) if not same_references else 0):
             visible = i < len(references)
             for item in (self.reference_magnitude[i], self.reference_phase[i], self.reference_labels[i]):
                 item.setVisible(visible)

@@ -105,8 +105,8 @@ def resonance_ratio_axis(damping: Damping, low: float = PLOT_RATIO_RANGE[0],
         peak = transmissibility_peak(damping).ratio
         spread = 1.0 + RESONANCE_HALF_WIDTH * equivalent
         band = peak * np.geomspace(1.0 / spread, spread, resonance_points)
-        grid = np.union1d(grid, np.append(band, peak))
-        grid = grid[(grid >= low) & (grid <= high)]
+        grid = np.sort(np.concatenate((grid, band, [peak])))
+        grid = grid[np.concatenate(([True], np.diff(grid) > 0.0)) & (grid >= low) & (grid <= high)]
     return grid
 
 

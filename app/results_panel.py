@@ -74,7 +74,7 @@ class ValueText(QtWidgets.QWidget):
             return
         before = self.heightForWidth(self.width())
         self._text = text
-        if self.heightForWidth(self.width()) != before or self.height() != before:
+        if self.heightForWidth(self.width()) != before:
             self.updateGeometry()
         self.update()
 

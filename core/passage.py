@@ -29,13 +29,13 @@ Two published estimates complete the picture:
 """
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from typing import Literal
 
 import numpy as np
 
 from core.errors import InputError
+from core.matrices import small_matrix_exponential
 from core.excitation import rad_s_to_rpm, rpm_to_rad_s
 from core.transmissibility import viscous_transmissibility
 
@@ -118,35 +118,6 @@ class SdofResponse:
     time_s: np.ndarray
     displacement_m: np.ndarray
     velocity_m_per_s: np.ndarray
-
-
-#: Scaled 1-norm at or below which :func:`small_matrix_exponential` sums its series.
-_SERIES_NORM = 0.5
-#: Terms of that series: the first left out is below 0.5**19 / 19! (about 1e-23).
-_SERIES_TERMS = 18
-
-
-def small_matrix_exponential(matrix) -> np.ndarray:
-    """exp(M) of a small square matrix, by scaling and squaring with a Taylor series (numpy only).
-
-    M is scaled by 2**-s to a 1-norm of at most 0.5, the series summed to 18 terms and the
-    result squared s times. For the 2x2 and 4x4 matrices of the time stepping here it agrees
-    with ``scipy.linalg.expm`` to rounding (checked in the tests), without scipy's import
-    (about 0.2 s) or its per-call overhead (about 4 ms here, measured); not for large or
-    badly scaled matrices.
-    """
-    matrix = np.asarray(matrix, dtype=float)
-    norm = float(np.abs(matrix).sum(axis=0).max()) if matrix.size else 0.0
-    squarings = max(0, math.ceil(math.log2(norm / _SERIES_NORM))) if norm > _SERIES_NORM else 0
-    scaled = matrix / 2.0 ** squarings
-    result = np.eye(matrix.shape[0])
-    term = np.eye(matrix.shape[0])
-    for k in range(1, _SERIES_TERMS + 1):
-        term = term @ scaled / k
-        result = result + term
-    for _ in range(squarings):
-        result = result @ result
-    return result
 
 
 def _hold_matrices(mass_kg: float, stiffness_n_per_m: float, damping_n_s_per_m: float, step_s: float):

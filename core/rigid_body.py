@@ -24,6 +24,7 @@ import numpy as np
 
 from core.constants import STANDARD_GRAVITY
 from core.errors import InputError
+from core.matrices import generalized_eigh
 
 #: Names of the six coordinates, in the order of every 6-vector and 6x6 matrix.
 COORDINATES = ("x", "y", "z", "θx", "θy", "θz")
@@ -415,14 +416,9 @@ def _free_motion_error(free_shapes: np.ndarray, cg_m: np.ndarray) -> InputError:
 def _solve_modes(stiffness: np.ndarray, mass: np.ndarray, cg_m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """``eigh(K, M)``; InputError naming the free motions if K leaves any unresisted.
 
-    Solved as the standard problem of L^-1 K L^-T with M = L L^T (numpy only; the tests check
-    it against ``scipy.linalg.eigh``): shapes come out mass-normalised, S^T M S = I.
+    Shapes come out mass-normalised, S^T M S = I (:func:`core.matrices.generalized_eigh`).
     """
-    lower = np.linalg.cholesky(mass)
-    inverse = np.linalg.inv(lower)
-    reduced = inverse @ stiffness @ inverse.T
-    eigenvalues, vectors = np.linalg.eigh((reduced + reduced.T) / 2.0)
-    shapes = inverse.T @ vectors
+    eigenvalues, shapes = generalized_eigh(stiffness, mass)
     free = eigenvalues <= _FREE_MOTION_RELATIVE * max(eigenvalues[-1], 0.0)
     if np.any(free):
         raise _free_motion_error(shapes[:, free], cg_m)

@@ -20,6 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from core.errors import InputError
+from core.matrices import generalized_eigh
 from core.transmissibility import MAX_DAMPING, Damping, force_transmissibility
 
 #: Allowed ranges (SI) of the two-stage inputs.
@@ -139,12 +140,11 @@ class TwoStageModes:
 
 
 def two_stage_modes(system: TwoStageSystem) -> TwoStageModes:
-    """Natural frequencies and mode shapes from K phi = w^2 M phi (``scipy.linalg.eigh``), damping ignored."""
+    """Natural frequencies and mode shapes from K phi = w^2 M phi, damping ignored."""
     k1, k2 = system.lower_stiffness_n_per_m, system.upper_stiffness_n_per_m
     stiffness = np.array([[k1 + k2, -k2], [-k2, k2]])
     mass = np.diag([system.intermediate_mass_kg, system.machine_mass_kg])
-    from scipy.linalg import eigh  # imported here: scipy loads in ~0.2 s, kept off the window's start-up
-    eigenvalues, shapes = eigh(stiffness, mass)
+    eigenvalues, shapes = generalized_eigh(stiffness, mass)
     return TwoStageModes(np.sqrt(eigenvalues) / (2.0 * np.pi), shapes)
 
 

@@ -12,7 +12,6 @@ from core.passage import (
     passage_amplification_estimate,
     sdof_response,
     simulate_runup,
-    small_matrix_exponential,
     sweep_parameter,
     sweep_peak_fraction,
 )
@@ -276,22 +275,3 @@ def test_block_recursion_equals_the_plain_loop(zeta, count):
     got = linear_recursion(phi, drive)
     np.testing.assert_allclose(got, expected, rtol=0, atol=1e-9 * np.abs(expected).max())
 
-
-@settings(max_examples=300, deadline=None)
-@given(size=st.sampled_from([2, 4]), scale=st.floats(-4.0, 0.0), seed=st.integers(0, 2**32 - 1))
-def test_small_matrix_exponential_matches_scipy_expm(size, scale, seed):
-    # Reference: scipy.linalg.expm (Pade approximation with scaling and squaring), on random
-    # matrices of 1-norm up to about 5, wider than the stepping matrices (about 0.5 to 1).
-    import scipy.linalg
-    matrix = np.random.default_rng(seed).normal(size=(size, size)) * 10.0 ** scale
-    reference = scipy.linalg.expm(matrix)
-    np.testing.assert_allclose(small_matrix_exponential(matrix), reference,
-                               rtol=0, atol=1e-12 * np.abs(reference).max())
-
-
-def test_small_matrix_exponential_of_a_rotation_generator():
-    # exp([[0, t], [-t, 0]]) = [[cos t, sin t], [-sin t, cos t]] (closed form).
-    for angle in (1e-6, 0.3, 2.0, 7.5):
-        got = small_matrix_exponential(np.array([[0.0, angle], [-angle, 0.0]]))
-        np.testing.assert_allclose(got, [[np.cos(angle), np.sin(angle)], [-np.sin(angle), np.cos(angle)]],
-                                   rtol=0, atol=1e-14)

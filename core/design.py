@@ -43,15 +43,13 @@ def check_range(name: str, value: Any, unit: str = "", integer: bool = False) ->
     low, high = LIMITS[name]
     kind = "a whole number" if integer else "a number"
     reason = f"must be {kind} from {low:g} to {high:g}{' ' + unit if unit else ''}"
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise InputError(name, reason, value)
+    if isinstance(value, bool) or not isinstance(value, int if integer else (int, float)):
+        raise InputError(name, reason, value)   # a whole number must be an int: 4.0 would reach array shapes
     try:
         finite = math.isfinite(value)
     except OverflowError:   # an int beyond the float range
         finite = False
     if not finite or not low <= value <= high:
-        raise InputError(name, reason, value)
-    if integer and value != int(value):
         raise InputError(name, reason, value)
     return int(value) if integer else float(value)
 

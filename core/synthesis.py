@@ -24,6 +24,10 @@ from core.transmissibility import (
 PRACTICAL_RATIO = 3.0
 #: Band around resonance (as a share of the natural frequency) that running speed should avoid.
 RESONANCE_BAND = 0.2
+#: Largest |T| at a running speed that gives a result. ζ = 0.005 at resonance gives 100; beyond
+#: a million the "design" is a machine parked on its resonance with next to no damping, and
+#: derived figures (isolation %, forces) overflow or lose meaning.
+MAX_OPERATING_TRANSMISSIBILITY = 1e6
 
 
 @dataclass(frozen=True)
@@ -232,10 +236,15 @@ def synthesize(design: DesignInputs) -> DesignResult:
         magnitude = abs(response)
         peak = transmissibility_peak(design.damping)
         worst, worst_speed = _worst_over_range(design, omega_n, ratio, ratio_high)
+    field = "damping.damping_ratio" if design.damping.model == "viscous" else "damping.loss_factor"
     if not (np.isfinite(worst) and np.isfinite(magnitude)):
-        field = "damping.damping_ratio" if design.damping.model == "viscous" else "damping.loss_factor"
         raise InputError(field, "must be > 0 when a running speed is at resonance (frequency ratio 1): "
                          "the undamped response there is unbounded", design.damping.value)
+    if max(worst, magnitude) > MAX_OPERATING_TRANSMISSIBILITY:
+        raise InputError(field, f"is too small for a running speed this close to resonance: |T| reaches "
+                         f"{max(worst, magnitude):.3g} there (more than {MAX_OPERATING_TRANSMISSIBILITY:g}); "
+                         "raise the damping or move the natural frequency away from the running speeds",
+                         design.damping.value)
     static_deflection = design.weight_n / static_stiffness
     duty_points = _duty_points(design, omega_n)
 

@@ -514,7 +514,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             for band in self.speed_bands:
                 band.setVisible(False)
             self._show_duty_in_legend(False)
-        self._set_legend(0, f"{design_curve.label} (design)")
+        # Exports name the design's damping; the window's legend says "design" and leaves the
+        # value to the slider box beside it (a new legend text per slider step costs 0.4 ms).
+        self._set_legend(0, "design" if self._layered else f"{design_curve.label} (design)")
         symbol = "ζ" if damping.model == "viscous" else "η"
         self._set_legend(1, f"reference {symbol}")
         self._set_legend(3, f"target {design.isolation_percent:g} %")

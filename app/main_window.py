@@ -39,6 +39,8 @@ from core.units import SYSTEM_NAMES, UNIT_SYSTEMS  # noqa: E402
 
 READOUT_HINT = "Point at the plots to read r, |T| and phase"
 PROJECT_FILTER = f"Mountsmith projects (*{FILE_SUFFIX} *.json);;All files (*)"
+#: Share of the screen's width and height the window takes at its first start.
+FIRST_START_SCREEN_SHARE = 0.94
 #: The coalesced redraw posted by :meth:`MainWindow.schedule_redraw`.
 REDRAW_EVENT = QtCore.QEvent.Type(QtCore.QEvent.registerEventType())
 
@@ -501,6 +503,12 @@ def run(path: str | None = None) -> int:
     app.setOrganizationName(ORGANIZATION)
     app.setApplicationName(APPLICATION)
     window = MainWindow()
+    if window.settings.window_layout()[0] is None:   # first start: most of the screen, not 1400 x 860
+        screen = app.primaryScreen()
+        if screen is not None:
+            space = screen.availableGeometry()
+            window.resize(int(space.width() * FIRST_START_SCREEN_SHARE),
+                          int(space.height() * FIRST_START_SCREEN_SHARE))
     window.show()
     if path:
         window.open_file(path)

@@ -54,6 +54,9 @@ class ValueText(QtWidgets.QWidget):
 
     #: Width hint in average character widths.
     HINT_CHARACTERS = 26
+    #: Drawn text: a word joiner on both sides of "/" keeps units such as N/mm on one line
+    #: (Unicode line breaking allows a break after a slash).
+    _UNBROKEN = str.maketrans({"/": "\u2060/\u2060"})
     _FLAGS = int(QtCore.Qt.TextFlag.TextWordWrap) | int(QtCore.Qt.AlignmentFlag.AlignLeft) | \
         int(QtCore.Qt.AlignmentFlag.AlignTop)
 
@@ -85,7 +88,8 @@ class ValueText(QtWidgets.QWidget):
         key = (self._text, width, self.font().key())
         if self._height_for is None or self._height_for[0] != key:   # layouts ask many times
             metrics = self.fontMetrics()
-            bounds = metrics.boundingRect(QtCore.QRect(0, 0, max(width, 1), 1 << 20), self._FLAGS, self._text)
+            bounds = metrics.boundingRect(QtCore.QRect(0, 0, max(width, 1), 1 << 20), self._FLAGS,
+                                          self._text.translate(self._UNBROKEN))
             self._height_for = (key, max(bounds.height(), metrics.height()))
         return self._height_for[1]
 
@@ -100,7 +104,7 @@ class ValueText(QtWidgets.QWidget):
     def paintEvent(self, _event) -> None:  # noqa: N802
         painter = QtGui.QPainter(self)
         painter.setPen(self.palette().color(QtGui.QPalette.ColorRole.WindowText))
-        painter.drawText(self.rect(), self._FLAGS, self._text)
+        painter.drawText(self.rect(), self._FLAGS, self._text.translate(self._UNBROKEN))
         painter.end()
 
 

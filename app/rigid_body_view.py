@@ -34,6 +34,10 @@ from core.units import to_display, unit_symbol
 #: Marker sizes (pixels) of the lightest and the most heavily loaded mount.
 SMALLEST_MARKER_PX, LARGEST_MARKER_PX = 9.0, 24.0
 CG_MARKER_PX = 20.0
+#: Smallest height of the plan and side plots (px); below it the tab scrolls.
+PLOT_MIN_HEIGHT = 260
+#: Rows a table shows without scrolling inside it (the six modes; mounts beyond scroll).
+TABLE_ROWS_SHOWN = 6
 #: Table cells keep the unrounded SI value under this role (tests and copy/export read it).
 VALUE_ROLE = Qt.ItemDataRole.UserRole
 
@@ -160,9 +164,10 @@ class RigidBodyView(QWidget):
              f"Vertical load ({self._force})", f"Fx ({self._force})", f"Fy ({self._force})",
              f"Fz ({self._force})", f"Deflection z ({self._length})")
         )
-        tables = QHBoxLayout()
-        tables.addWidget(self._group("Rigid-body modes (kinetic-energy share per coordinate)", self.modes_table))
-        tables.addWidget(self._group("Static loads from the machine's weight", self.loads_table))
+        # The modes first, the layout plots, then the loads, one above the other (side by side,
+        # a window of common size left each table a header row only); the tab scrolls.
+        for plot in (self.plan_plot, self.side_plot):
+            plot.setMinimumHeight(PLOT_MIN_HEIGHT)
 
         self.note_label = QLabel()
         self.note_label.setWordWrap(True)
@@ -171,8 +176,9 @@ class RigidBodyView(QWidget):
         self.caution_label.setStyleSheet(f"color: {PALETTE['caution_text']};")
 
         layout = QVBoxLayout(self)
-        layout.addLayout(plots, stretch=3)
-        layout.addLayout(tables, stretch=2)
+        layout.addWidget(self._group("Rigid-body modes (kinetic-energy share per coordinate)", self.modes_table))
+        layout.addLayout(plots, stretch=1)
+        layout.addWidget(self._group("Static loads from the machine's weight", self.loads_table))
         layout.addWidget(self.note_label)
         layout.addWidget(self.caution_label)
 
@@ -252,6 +258,7 @@ class RigidBodyView(QWidget):
             for column, share in enumerate(result.energy_share[row]):
                 table.setItem(row, 3 + column, _item(_fixed(100.0 * share, DECIMALS["share", "SI"]), share))
         table.resizeColumnsToContents()
+        _fit_rows(table)
 
     def _show_loads(self, mounts, loads: StaticLoads, names) -> None:
         table = self.loads_table
@@ -269,6 +276,17 @@ class RigidBodyView(QWidget):
                 text = _fixed(to_display(value, kind, system), DECIMALS[style, system])
                 table.setItem(row, column, _item(text, value))
         table.resizeColumnsToContents()
+        _fit_rows(table)
+
+
+def _fit_rows(table: QTableWidget) -> None:
+    """Make ``table`` tall enough for its rows, up to TABLE_ROWS_SHOWN (more rows scroll inside it)."""
+    rows = min(table.rowCount(), TABLE_ROWS_SHOWN)
+    height = table.horizontalHeader().height() + 2 * table.frameWidth() + sum(
+        table.rowHeight(row) for row in range(rows))
+    if table.horizontalScrollBar().isVisible() or table.horizontalScrollBar().maximum() > 0:
+        height += table.horizontalScrollBar().sizeHint().height()
+    table.setMinimumHeight(height)
 
 
 def main() -> int:

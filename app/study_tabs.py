@@ -55,6 +55,8 @@ VIEW_ATTRIBUTES = {
 }
 #: Width of the editor column of a study tab (px).
 EDITOR_WIDTH = 330
+#: Width of the design map's note column (px).
+NOTE_WIDTH = 210
 
 
 def _scrolled(widget: QtWidgets.QWidget, width: int | None = EDITOR_WIDTH) -> QtWidgets.QScrollArea:
@@ -90,7 +92,7 @@ class StudyTab(QtWidgets.QWidget):
     """An editor column on the left, the study's view on the right, a message above the view."""
 
     def __init__(self, editor: QtWidgets.QWidget, parent=None, editor_on_top: bool = False,
-                 editor_below: bool = False):
+                 editor_below: bool = False, editor_width: int = EDITOR_WIDTH):
         super().__init__(parent)
         self.editor = editor
         self.side = QtWidgets.QWidget()
@@ -124,10 +126,10 @@ class StudyTab(QtWidgets.QWidget):
             self.splitter.setSizes([4 * EDITOR_WIDTH, EDITOR_WIDTH - 60])
         else:
             self.splitter = QtWidgets.QSplitter(QtCore.Qt.Orientation.Horizontal)
-            self.splitter.addWidget(_scrolled(self.side))
+            self.splitter.addWidget(_scrolled(self.side, editor_width))
             self.splitter.addWidget(content)
             self.splitter.setStretchFactor(1, 1)
-            self.splitter.setSizes([EDITOR_WIDTH, 10 * EDITOR_WIDTH])
+            self.splitter.setSizes([editor_width, 10 * EDITOR_WIDTH])
         self.splitter.setChildrenCollapsible(False)
         layout.addWidget(self.splitter)
 
@@ -239,7 +241,7 @@ class StudyTabs(QtCore.QObject):
         self.map_note = _label("", "map_note")
         layout.addWidget(self.map_note)
         layout.addStretch(1)
-        tab = StudyTab(note)
+        tab = StudyTab(note, editor_width=NOTE_WIDTH)   # a column of text: the map takes the width
 
         def views():
             self.map_view = DesignMapView()

@@ -68,6 +68,9 @@ class ValueText(QtWidgets.QWidget):
                                        QtWidgets.QSizePolicy.Policy.Preferred)
         policy.setHeightForWidth(True)
         self.setSizePolicy(policy)
+        # It paints its whole rectangle (background too), so Qt need not repaint the panel
+        # beneath it for a new value.
+        self.setAttribute(QtCore.Qt.WidgetAttribute.WA_OpaquePaintEvent)
 
     def text(self) -> str:
         return self._text
@@ -103,6 +106,7 @@ class ValueText(QtWidgets.QWidget):
 
     def paintEvent(self, _event) -> None:  # noqa: N802
         painter = QtGui.QPainter(self)
+        painter.fillRect(self.rect(), self.palette().color(QtGui.QPalette.ColorRole.Window))
         painter.setPen(self.palette().color(QtGui.QPalette.ColorRole.WindowText))
         painter.drawText(self.rect(), self._FLAGS, self._text.translate(self._UNBROKEN))
         painter.end()

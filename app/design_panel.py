@@ -483,6 +483,10 @@ class OperatingPointControls(QtWidgets.QGroupBox):
         for spin in (self.damping_spin, self.ratio_spin):
             spin.setKeyboardTracking(False)
             spin.setMinimumWidth(84)
+        for widget in (self.damping_slider, self.ratio_slider, self.damping_spin, self.ratio_spin):
+            # Filled with the window colour, they count as opaque: a new value repaints them
+            # alone, not the group box, dock and window beneath.
+            widget.setAutoFillBackground(True)
         grid.addWidget(self.damping_label, 0, 0, 1, 2)
         grid.addWidget(self.damping_slider, 1, 0)
         grid.addWidget(self.damping_spin, 1, 1)

@@ -154,6 +154,7 @@ class MainWindow(QtWidgets.QMainWindow):
         events.path_changed.connect(lambda _path: self._update_title())
         events.dirty_changed.connect(lambda _dirty: self._update_title())
         events.undo_changed.connect(self._update_undo_actions)
+        events.project_replaced.connect(lambda _project: self.results.forget_heights())
         geometry, state = self.settings.window_layout()
         if geometry is not None:
             self.restoreGeometry(geometry)
@@ -243,6 +244,7 @@ class MainWindow(QtWidgets.QMainWindow):
 
     def _view_changed(self, view: ViewSettings) -> None:
         self.design_panel.set_units(view.units)
+        self.results.forget_heights()
         for (field, value), action in self.view_actions.items():
             if action.isChecked() != (getattr(view, field) == value):
                 action.setChecked(getattr(view, field) == value)

@@ -48,8 +48,10 @@ class ValueText(QtWidgets.QWidget):
     """One word-wrapped, plain-text result value.
 
     It repaints itself for a new text and calls ``updateGeometry`` only when the text needs
-    another height at the current width. The width hint is fixed (``HINT_CHARACTERS``
-    average characters): the layout gives a value the width of its column anyway.
+    more lines than it has had at the current width: a value never shrinks while its width
+    stays (until :meth:`forget_height`), so rows do not jump up and down during a slider drag,
+    and the panel is not laid out again at every step. The width hint is fixed
+    (``HINT_CHARACTERS`` average characters): the layout gives a value the width of its column.
     """
 
     #: Width hint in average character widths.
@@ -64,6 +66,7 @@ class ValueText(QtWidgets.QWidget):
         super().__init__(parent)
         self._text = text
         self._height_for = None    # (text, width, font key), height
+        self._tallest = None       # (width, font key), the most height the texts needed there
         policy = QtWidgets.QSizePolicy(QtWidgets.QSizePolicy.Policy.Preferred,
                                        QtWidgets.QSizePolicy.Policy.Preferred)
         policy.setHeightForWidth(True)
@@ -87,14 +90,26 @@ class ValueText(QtWidgets.QWidget):
     def hasHeightForWidth(self) -> bool:  # noqa: N802
         return True
 
+    def forget_height(self) -> None:
+        """Let the value shrink to what its text needs (a new project, other units)."""
+        if self._tallest is not None:
+            self._tallest = None
+            self.updateGeometry()
+
     def heightForWidth(self, width: int) -> int:  # noqa: N802
-        key = (self._text, width, self.font().key())
+        font = self.font().key()
+        key = (self._text, width, font)
         if self._height_for is None or self._height_for[0] != key:   # layouts ask many times
             metrics = self.fontMetrics()
             bounds = metrics.boundingRect(QtCore.QRect(0, 0, max(width, 1), 1 << 20), self._FLAGS,
                                           self._text.translate(self._UNBROKEN))
             self._height_for = (key, max(bounds.height(), metrics.height()))
-        return self._height_for[1]
+        height = self._height_for[1]
+        if width == self.width():      # the width it has: never less than it has needed there
+            if self._tallest is not None and self._tallest[0] == (width, font):
+                height = max(height, self._tallest[1])
+            self._tallest = ((width, font), height)
+        return height
 
     def sizeHint(self) -> QtCore.QSize:  # noqa: N802
         width = self.fontMetrics().averageCharWidth() * self.HINT_CHARACTERS
@@ -212,6 +227,11 @@ class ResultsPanel(QtWidgets.QWidget):
         copy = QtGui.QAction("Copy results", self)
         copy.triggered.connect(lambda: QtWidgets.QApplication.clipboard().setText(self.as_text()))
         self.addAction(copy)
+
+    def forget_heights(self) -> None:
+        """Let every value shrink to its text again (after a new project or a unit change)."""
+        for label in (*self.value_labels.values(), *self.study_value_labels.values()):
+            label.forget_height()
 
     def as_text(self) -> str:
         """The shown rows, study rows and warnings as plain text, one ``label: value`` a line."""

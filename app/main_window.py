@@ -71,6 +71,21 @@ VIEW_CHOICES = (
 )
 
 
+class _RedrawReceiver(QtCore.QObject):
+    """Receives the posted redraw (a QObject of its own: an ``event`` override on the window
+    would put every event of the window through Python)."""
+
+    def __init__(self, redraw, parent):
+        super().__init__(parent)
+        self._redraw = redraw
+
+    def event(self, event: QtCore.QEvent) -> bool:
+        if event.type() == REDRAW_EVENT:
+            self._redraw()
+            return True
+        return super().event(event)
+
+
 class MainWindow(QtWidgets.QMainWindow):
     """The design window over one :class:`~core.design_model.DesignModel`.
 
@@ -95,6 +110,7 @@ class MainWindow(QtWidgets.QMainWindow):
         self.resize(1400, 860)
         self._redraw_pending = False
         self._redraw_posted = False
+        self._redraw_receiver = _RedrawReceiver(self._posted_redraw, self)
         self.redraw_count = 0
 
         # ---- central tabs with the plots
@@ -261,15 +277,12 @@ class MainWindow(QtWidgets.QMainWindow):
         self._redraw_pending = True
         if not self._redraw_posted:
             self._redraw_posted = True
-            QtCore.QCoreApplication.postEvent(self, QtCore.QEvent(REDRAW_EVENT))
+            QtCore.QCoreApplication.postEvent(self._redraw_receiver, QtCore.QEvent(REDRAW_EVENT))
 
-    def event(self, event: QtCore.QEvent) -> bool:
-        if event.type() == REDRAW_EVENT:
-            self._redraw_posted = False
-            if self._redraw_pending:
-                self.refresh_now()
-            return True
-        return super().event(event)
+    def _posted_redraw(self) -> None:
+        self._redraw_posted = False
+        if self._redraw_pending:
+            self.refresh_now()
 
     @property
     def redraw_pending(self) -> bool:

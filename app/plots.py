@@ -339,6 +339,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
                 self._render_layers(key)
                 if event.rect() != self.viewport().rect():
                     self.viewport().update()   # the rest of the viewport shows the old layers
+            # pyqtgraph's paintEvent would prepare the scene a second time (every text item
+            # updates its transform again); Qt's own paints the items.
+            return QtWidgets.QGraphicsView.paintEvent(self, event)
         return super().paintEvent(event)
 
     def drawBackground(self, painter, rect):

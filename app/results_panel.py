@@ -291,4 +291,6 @@ class ResultsPanel(QtWidgets.QWidget):
 
     def _show_warnings(self) -> None:
         warnings = self._design_warnings + self._study_warnings
-        self.warnings_label.setText("\n".join(f"• {w}" for w in warnings) if warnings else "none")
+        text = "\n".join(f"• {w}" for w in warnings) if warnings else "none"
+        if self.warnings_label.text() != text:     # a repaint and a new layout otherwise
+            self.warnings_label.setText(text)

@@ -6,6 +6,8 @@ shows it beside the field or in a dialog.
 """
 from __future__ import annotations
 
+import math
+
 
 class MountsmithError(Exception):
     """Base class of every error the program reports to a user."""
@@ -30,6 +32,23 @@ class InputError(MountsmithError, ValueError):
         self.value = value
         shown = "" if value is None else f" (got {value!r})"
         super().__init__(f"{field}: {reason}{shown}")
+
+
+def finite_number(field: str, value: object, reason: str, low: float = -math.inf,
+                  high: float = math.inf) -> float:
+    """``value`` as a float from ``low`` to ``high`` (inclusive), else InputError(field, reason, value).
+
+    Numbers and numeric text are accepted; booleans, other objects, NaN and infinities are not.
+    """
+    if isinstance(value, bool):
+        raise InputError(field, reason, value)
+    try:
+        number = float(value)
+    except (TypeError, ValueError, OverflowError):
+        raise InputError(field, reason, value) from None
+    if not math.isfinite(number) or not low <= number <= high:
+        raise InputError(field, reason, value)
+    return number
 
 
 class TargetUnreachable(MountsmithError, ValueError):

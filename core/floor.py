@@ -27,7 +27,7 @@ import numpy as np
 _trapezoid = getattr(np, "trapezoid", None) or np.trapz
 
 from core.constants import STANDARD_GRAVITY
-from core.errors import InputError, TargetUnreachable
+from core.errors import InputError, TargetUnreachable, finite_number
 from core.transmissibility import Damping, motion_transmissibility, stroke_ratio
 
 BandRule = Literal["centre", "band-average"]
@@ -82,7 +82,7 @@ def band_index(frequency_hz: float, field: str = "band_hz") -> int:
     low, high = nominal_centre_hz(MIN_BAND_INDEX), nominal_centre_hz(MAX_BAND_INDEX)
     reason = (f"must be a one-third-octave band centre from {low:g} to {high:g} Hz "
               "(1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5, 6.3, 8 and their decades)")
-    value = _number(field, frequency_hz, reason)
+    value = finite_number(field, frequency_hz, reason)
     if value <= 0.0:
         raise InputError(field, reason, frequency_hz)
     position = 10.0 * math.log10(value)
@@ -272,22 +272,9 @@ def floor_spectrum(band_hz, velocity_m_s, field: str = "floor") -> FloorSpectrum
     return _spectrum(indices, values, [f"{field}.band_hz[{i}]" for i in range(len(indices))])
 
 
-def _number(field: str, value, reason: str) -> float:
-    """``value`` as a finite float (text accepted), else InputError(field, reason, value)."""
-    if isinstance(value, bool):
-        raise InputError(field, reason, value)
-    try:
-        number = float(value)
-    except (TypeError, ValueError):
-        raise InputError(field, reason, value) from None
-    if not math.isfinite(number):
-        raise InputError(field, reason, value)
-    return number
-
-
 def _checked_velocity(value, scale: float, field: str, unit: str) -> float:
     """``value * scale`` (m/s) if ``value`` is a number giving (0, MAX] m/s."""
-    speed = _number(field, value, _velocity_reason(unit)) * scale
+    speed = finite_number(field, value, _velocity_reason(unit)) * scale
     if not 0.0 < speed <= MAX_FLOOR_VELOCITY_M_S * (1 + 1e-12):
         raise InputError(field, _velocity_reason(unit), value)
     return speed
@@ -463,7 +450,7 @@ def isolator_damping(damping_ratio: float | None = None,
 def _natural_frequency(value: float, field: str = "natural_frequency_hz") -> float:
     low, high = NATURAL_FREQUENCY_RANGE_HZ
     reason = f"must be a number from {low:g} to {high:g} Hz"
-    number = _number(field, value, reason)
+    number = finite_number(field, value, reason)
     if not low <= number <= high:
         raise InputError(field, reason, value)
     return number

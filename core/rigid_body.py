@@ -23,7 +23,7 @@ from typing import Sequence
 import numpy as np
 
 from core.constants import STANDARD_GRAVITY
-from core.errors import InputError
+from core.errors import InputError, finite_number
 from core.matrices import generalized_eigh
 
 #: Names of the six coordinates, in the order of every 6-vector and 6x6 matrix.
@@ -65,11 +65,8 @@ def _complex_vector(value, field: str, what: str) -> np.ndarray:
 
 def _positive_number(value, field: str, reason: str) -> float:
     """One finite number > 0, else InputError."""
-    try:
-        number = float(value)
-    except (TypeError, ValueError):
-        raise InputError(field, reason, value) from None
-    if not np.isfinite(number) or number <= 0:
+    number = finite_number(field, value, reason)
+    if number <= 0:
         raise InputError(field, reason, value)
     return number
 

@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from core.errors import InputError
+from core.errors import InputError, finite_number
 from core.matrices import generalized_eigh
 from core.transmissibility import MAX_DAMPING, Damping, force_transmissibility
 
@@ -30,16 +30,8 @@ DAMPING_RANGE_N_S_PER_M = (0.0, 1e11)
 
 
 def _checked(field: str, value, low: float, high: float, unit: str) -> float:
-    reason = f"must be a number from {low:g} to {high:g}{' ' + unit if unit else ''}"
-    if isinstance(value, bool):
-        raise InputError(field, reason, value)
-    try:
-        number = float(value)
-    except (TypeError, ValueError):
-        raise InputError(field, reason, value) from None
-    if not math.isfinite(number) or not low <= number <= high:
-        raise InputError(field, reason, value)
-    return number
+    return finite_number(field, value, f"must be a number from {low:g} to {high:g}{' ' + unit if unit else ''}",
+                         low, high)
 
 
 @dataclass(frozen=True)

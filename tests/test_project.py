@@ -7,7 +7,7 @@ import pytest
 
 from core import project as project_module
 from core.design import DesignInputs
-from core.errors import ProjectFileError
+from core.errors import InputError, ProjectFileError
 from core.evaluate import evaluate_project
 from core.excitation import Excitation
 from core.project import (MAX_FILE_BYTES, SCHEMA_VERSION, Project, ViewSettings, load_project, parse_project,
@@ -204,3 +204,16 @@ def test_save_into_read_only_folder_reports_cleanly(tmp_path, monkeypatch):
 def test_save_into_missing_folder_reports_cleanly(tmp_path):
     with pytest.raises(ProjectFileError, match="was not saved"):
         save_project(_sample(), tmp_path / "no-such-folder" / "rig.json")
+
+
+@pytest.mark.parametrize("value, ok", [(2.5, True), ("2.5", True), (0.0, True), (10.0, True), (True, False),
+                                       (float("nan"), False), (float("inf"), False), ("x", False), (None, False),
+                                       (10 ** 400, False), (-0.1, False), (10.1, False)])
+def test_finite_number_takes_numbers_and_numeric_text_in_range_only(value, ok):
+    from core.errors import finite_number
+    if ok:
+        assert finite_number("f", value, "must be a number from 0 to 10", 0.0, 10.0) == float(value)
+    else:
+        with pytest.raises(InputError) as caught:
+            finite_number("f", value, "must be a number from 0 to 10", 0.0, 10.0)
+        assert caught.value.field == "f" and "from 0 to 10" in str(caught.value)

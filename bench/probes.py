@@ -2,8 +2,8 @@
 
 Modes:
 
-* ``app FILE``   — what ``mountsmith FILE`` runs (``app.cli.main([FILE])``), exiting at the
-  first paint of the plot area;
+* ``app FILE``   — what ``mountsmith FILE`` runs (``app.cli`` imported first, as the console
+  script does, then ``app.cli.main([FILE])``), exiting at the first paint of the plot area;
 * ``minimal``    — a minimal pyqtgraph window (PySide6 + numpy + pyqtgraph, one curve),
   exiting at the first paint of its plot area;
 * ``rss FILE``   — opens the real window on FILE, moves the damping slider 300 steps, and
@@ -37,10 +37,10 @@ def _exit_at_first_plot_paint(app) -> None:
 
 
 def app_mode(path: str) -> int:
+    from app.cli import main      # first, as the ``mountsmith`` command imports it (Qt not yet)
     from PySide6 import QtWidgets
     app = QtWidgets.QApplication(sys.argv[:1])   # the window's run() reuses this instance
     _exit_at_first_plot_paint(app)
-    from app.cli import main
     return main([path])
 
 

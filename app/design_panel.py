@@ -463,6 +463,7 @@ class OperatingPointControls(QtWidgets.QGroupBox):
 
     def __init__(self, model: DesignModel, parent=None):
         super().__init__("Operating point", parent)
+        self._shown = None   # (model values, widget values) of the last refresh
         self.model = model
         grid = QtWidgets.QGridLayout(self)
         grid.setContentsMargins(6, 4, 6, 4)
@@ -546,11 +547,18 @@ class OperatingPointControls(QtWidgets.QGroupBox):
     def refresh(self) -> None:
         """Show the model's damping and ratio (signals blocked; equal values left alone)."""
         damping = self.model.design.damping
+        shown = (damping, self.shown_ratio())
+        widgets = (self.damping_slider.value(), self.damping_spin.value(), self.ratio_slider.value(),
+                   self.ratio_spin.value())
+        if (shown, widgets) == self._shown:   # the window refreshes after every design event too
+            return
         symbol = "Damping ratio ζ" if damping.model == "viscous" else "Loss factor η"
         if self.damping_label.text() != symbol:
             self.damping_label.setText(symbol)
         self._show(self.damping_slider, self.damping_spin, DAMPING_GRID, damping.value)
-        self._show(self.ratio_slider, self.ratio_spin, RATIO_GRID, self.shown_ratio())
+        self._show(self.ratio_slider, self.ratio_spin, RATIO_GRID, shown[1])
+        self._shown = (shown, (self.damping_slider.value(), self.damping_spin.value(),
+                               self.ratio_slider.value(), self.ratio_spin.value()))
 
     @staticmethod
     def _show(slider: QtWidgets.QSlider, spin: QtWidgets.QDoubleSpinBox, grid, value: float) -> None:

@@ -6,6 +6,7 @@ the CSV export of plotted curves is built here.
 from __future__ import annotations
 
 import csv
+import functools
 import io
 import math
 from dataclasses import dataclass
@@ -99,15 +100,34 @@ def resonance_ratio_axis(damping: Damping, low: float = PLOT_RATIO_RANGE[0],
     width about 0.01 in r) gets tens of points across its peak, where an even 700-point grid
     has one. Without damping the band is left out and the grid keeps off r = 1.
     """
+    grid = _even_grid(low, high, points)
+    if damping.value <= 0.0:
+        return grid.copy()
+    equivalent = damping.value if damping.model == "viscous" else damping.value / 2.0
+    peak = transmissibility_peak(damping).ratio
+    # An odd count of points symmetric on a log scale: the middle one is the peak itself.
+    band = peak * (1.0 + RESONANCE_HALF_WIDTH * equivalent) ** _unit_band(resonance_points | 1)
+    band[len(band) // 2] = peak
+    band = band[(band >= low) & (band <= high)]
+    # Three sorted pieces, no sort: the even points below the band, the band, those above it.
+    below = grid[:np.searchsorted(grid, band[0], side="left")] if band.size else grid
+    above = grid[np.searchsorted(grid, band[-1], side="right"):] if band.size else grid[:0]
+    return np.concatenate((below, band, above))
+
+
+@functools.lru_cache(maxsize=8)
+def _even_grid(low: float, high: float, points: int) -> np.ndarray:
     grid = ratio_axis(low, high, points)
-    if damping.value > 0.0:
-        equivalent = damping.value if damping.model == "viscous" else damping.value / 2.0
-        peak = transmissibility_peak(damping).ratio
-        spread = 1.0 + RESONANCE_HALF_WIDTH * equivalent
-        band = peak * np.geomspace(1.0 / spread, spread, resonance_points)
-        grid = np.sort(np.concatenate((grid, band, [peak])))
-        grid = grid[np.concatenate(([True], np.diff(grid) > 0.0)) & (grid >= low) & (grid <= high)]
+    grid.flags.writeable = False
     return grid
+
+
+@functools.lru_cache(maxsize=8)
+def _unit_band(points: int) -> np.ndarray:
+    """Exponents from -1 to 1 (``points`` of them, odd): the band's log-spaced offsets."""
+    unit = np.linspace(-1.0, 1.0, points)
+    unit.flags.writeable = False
+    return unit
 
 
 @dataclass(frozen=True)

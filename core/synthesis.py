@@ -231,7 +231,7 @@ def synthesize(design: DesignInputs) -> DesignResult:
                          "move the centre of gravity towards the layout centre or widen the span", None)
     shares = loads / loads.sum()
 
-    with np.errstate(divide="ignore", invalid="ignore"):  # undamped at resonance: refused just below
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):  # (near-)undamped at resonance: refused below
         response = complex(force_transmissibility(ratio, design.damping))
         magnitude = abs(response)
         peak = transmissibility_peak(design.damping)

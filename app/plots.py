@@ -273,7 +273,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
 
     # ------------------------------------------------------------------ layered painting
     def _live_items(self) -> list:
-        """Items that change during a slider drag; painted every frame between the two layers."""
+        """Items that change during a slider drag; painted every frame over the static layer."""
         items = [self.design_magnitude, self.design_phase, *self.operating_magnitude.items,
                  *self.operating_phase.items, self.duty_magnitude, self.duty_phase, self.legend,
                  *self.crosshair_lines]

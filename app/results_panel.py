@@ -7,7 +7,8 @@ replaces the numbers.
 The values are :class:`ValueText` widgets, not QLabels: a QLabel asks its layout for a new
 geometry at every new text, and the scroll area around the panel then measures every
 word-wrapped row again (about 2 ms per slider step, measured). A ValueText asks only when
-its height at its width changes. The context menu copies all rows as text.
+it needs more lines than it has had (rows keep their height during a drag). The context menu
+copies all rows as text.
 """
 from __future__ import annotations
 

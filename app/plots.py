@@ -540,8 +540,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
     def _set_data(item: pg.PlotDataItem, x: np.ndarray, y: np.ndarray) -> None:
         """``setData`` unless the item already shows these points (duty markers rarely move)."""
         shown_x, shown_y = item.getOriginalDataset()
-        if (shown_x is not None and shown_y is not None and np.array_equal(shown_x, x)
-                and np.array_equal(shown_y, y)):
+        if shown_x is None or shown_y is None:   # an item with no points yet, or emptied
+            shown_x = shown_y = np.empty(0)
+        if np.array_equal(shown_x, x) and np.array_equal(shown_y, y):
             return
         item.setData(x, y)
 

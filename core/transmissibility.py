@@ -184,11 +184,17 @@ class FrequencyResponse:
         return self.magnitude * np.exp(1j * np.radians(self.phase_deg))
 
 
+#: Below this the squared denominator of |T| has lost precision to underflow (subnormals start
+#: at 2.2e-308).
+_SQUARES_UNDERFLOW = 1e-300
+
+
 def frequency_response(r, damping: Damping) -> FrequencyResponse:
     """Transmissibility magnitude and phase over the frequency ratios ``r``.
 
     Evaluated in real arithmetic, with a = 2 zeta r (viscous) or eta (hysteretic):
-    |T|**2 = (1 + a**2) / ((1 - r**2)**2 + a**2) and
+    |T|**2 = (1 + a**2) / ((1 - r**2)**2 + a**2), where that denominator underflows (a damping
+    below about 1e-150 at resonance) |T| = sqrt(1 + a**2) / hypot(1 - r**2, a), and
     phase = -atan2(a r**2, 1 - r**2 + a**2), the angle of (1 + j a)(1 - r**2 - j a).
     The same numbers as the complex expression, in about 60 % of its time.
     """
@@ -204,9 +210,13 @@ def frequency_response(r, damping: Damping) -> FrequencyResponse:
     denominator = one_minus * one_minus
     denominator += loss2
     magnitude = loss2 + 1.0
-    with np.errstate(divide="ignore"):  # undamped resonance: |T| = inf, as the complex form gives
+    with np.errstate(divide="ignore", over="ignore"):  # no damping at r = 1: |T| = inf, as the complex form
         np.divide(magnitude, denominator, out=magnitude)
     np.sqrt(magnitude, out=magnitude)
+    lost = denominator < _SQUARES_UNDERFLOW
+    if lost.any():                      # squares near the float floor: the unsquared form
+        with np.errstate(divide="ignore", over="ignore"):
+            magnitude[lost] = np.sqrt(1.0 + loss2[lost]) / np.hypot(one_minus[lost], loss[lost])
     phase = np.multiply(loss, r2, out=loss)     # loss is a new array, not needed after this
     one_minus += loss2
     np.arctan2(phase, one_minus, out=phase)

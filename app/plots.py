@@ -53,18 +53,22 @@ def _lx(value: float) -> float:
     return math.log10(value)
 
 
-class DrawnCurve(pg.PlotCurveItem):
-    """A curve of core's drawn-curve grid on the log-x plots: mapped and clipped here.
+class DrawnCurve(QtWidgets.QGraphicsPathItem):
+    """A curve of core's drawn-curve grid on the log-x plots, as a plain Qt path item.
 
-    A PlotDataItem maps, checks and clips its data again at every ``setData``: 0.24 ms a curve
-    when the ratio grid changes with the damping (measured). Core's drawn curves are sorted and
-    finite, so this item takes log10 x (and log10 y on a log axis) directly and keeps only the
-    points over the visible x range, one beyond each end.
+    The data is mapped (log10 x, and log10 y on a log axis) and clipped to the visible x range
+    here, one point beyond each end, and drawn by Qt alone: a pyqtgraph curve item re-maps,
+    re-checks and re-clips its data at every ``setData`` (0.24 ms a curve when the grid changes
+    with the damping) and computes its bounds and path in Python at every paint (about 0.5 ms
+    a slider step for the two design curves, measured). Core's drawn curves are sorted and
+    finite (tested), which is all this item assumes.
     """
 
     def __init__(self, pen: QtGui.QPen):
-        super().__init__(pen=pen)
+        super().__init__()
+        self.setPen(pen)
         self._original = (None, None)
+        self._shown = (np.empty(0), np.empty(0))
         self._x_range = None
 
     def set_curve(self, x, y, log_y: bool, x_range: tuple[float, float]) -> None:
@@ -77,42 +81,52 @@ class DrawnCurve(pg.PlotCurveItem):
             return                          # a ratio-slider step leaves the curves as they are
         self._original = (x, y)
         self._x_range = x_range
-        if x.size == 0:
-            self.setData([], [])
+        if x.size < 2:
+            self._shown = (np.empty(0), np.empty(0))
+            self.setPath(QtGui.QPainterPath())
             return
         log_x = np.log10(x)
         low = max(int(np.searchsorted(log_x, math.log10(x_range[0]))) - 1, 0)
         high = int(np.searchsorted(log_x, math.log10(x_range[1]))) + 1
-        self.setData(log_x[low:high], np.log10(y[low:high]) if log_y else y[low:high])
+        self._shown = (log_x[low:high], np.log10(y[low:high]) if log_y else y[low:high])
+        self.setPath(pg.arrayToQPath(*self._shown, connect="all", finiteCheck=False))
 
-    def getOriginalDataset(self):  # noqa: N802 (as PlotDataItem's)
+    def getOriginalDataset(self):  # noqa: N802 (as pyqtgraph's items)
         """The curve as given, in data units, all points (x, y)."""
         return self._original
 
+    def getData(self):  # noqa: N802
+        """The points drawn, in the plot's (log10) coordinates (x, y)."""
+        return self._shown
+
 
 class PointMarkers:
-    """Up to ``count`` symbols on one plot, each a one-point item moved with ``setPos``.
+    """Up to ``count`` round symbols on one plot, plain Qt ellipse items of a fixed pixel size.
 
-    New data on a scatter item re-renders its symbols (about 0.25 ms an item, measured); a
-    move is only a new transform, and an item cached as a pixmap keeps its pixmap.
+    Each sits at its point (log10 where the axis is) and ignores the view's scaling, so Qt
+    moves and paints it alone: a pyqtgraph scatter item re-renders its symbols for new data
+    (about 0.25 ms an item) and computes its bounds in Python at every paint (measured).
 
     Attributes
     ----------
-    items : list of pg.PlotDataItem
-        Their data is the log origin; their position is the point (log10 where the axis is).
+    items : list of QGraphicsEllipseItem
+    sample : pg.PlotDataItem
+        Not drawn: the legend's picture of the symbol.
     """
 
-    def __init__(self, plot: pg.PlotItem, count: int, z: float, cached: bool, **style):
-        self.items = [plot.plot(**style) for _ in range(count)]
-        for item in self.items:
+    def __init__(self, plot: pg.PlotItem, count: int, z: float, size: float, brush, pen: QtGui.QPen):
+        self.items = []
+        for _ in range(count):
+            item = QtWidgets.QGraphicsEllipseItem(-size / 2.0, -size / 2.0, size, size)
+            item.setBrush(pg.mkBrush(brush))
+            item.setPen(pen)
+            item.setFlag(QtWidgets.QGraphicsItem.GraphicsItemFlag.ItemIgnoresTransformations)
             item.setZValue(z)
             item.setVisible(False)
-            # No itemChange round trip to pyqtgraph per move (0.2 ms each, measured): the axis
-            # ranges are fixed, so the view need not hear of the markers' bounds.
-            item.setFlag(QtWidgets.QGraphicsItem.GraphicsItemFlag.ItemSendsGeometryChanges, False)
-            if cached:
-                item.scatter.setCacheMode(QtWidgets.QGraphicsItem.CacheMode.DeviceCoordinateCache)
-        self._log_y = None
+            plot.addItem(item, ignoreBounds=True)
+            self.items.append(item)
+        self.sample = pg.PlotDataItem([0.0], [0.0], pen=None, symbol="o", symbolSize=size, symbolBrush=brush,
+                                      symbolPen=pen)   # with a point: the legend reads its symbol's style
         self._points = (np.empty(0), np.empty(0))
 
     def set_points(self, x, y, log_y: bool) -> None:
@@ -123,16 +137,12 @@ class PointMarkers:
         """
         x = np.asarray(x, dtype=float)
         y = np.asarray(y, dtype=float)
-        if log_y != self._log_y:
-            self._log_y = log_y
-            for item in self.items:
-                item.setData([1.0], [1.0 if log_y else 0.0])   # the origin of the item's own axes
         shown_x, shown_y = [], []
         for i, item in enumerate(self.items):
             ok = bool(i < len(x) and math.isfinite(x[i]) and x[i] > 0.0 and math.isfinite(y[i]) and (
                 y[i] > 0.0 or not log_y))
-            if ok:   # Qt's own setPos: PlotDataItem's re-sends the data to its symbols at every move
-                QtWidgets.QGraphicsObject.setPos(item, math.log10(x[i]), math.log10(y[i]) if log_y else float(y[i]))
+            if ok:
+                item.setPos(math.log10(x[i]), math.log10(y[i]) if log_y else float(y[i]))
                 shown_x.append(float(x[i]))
                 shown_y.append(float(y[i]))
             if item.isVisible() != ok:
@@ -173,6 +183,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self._natural_frequency_hz = None
         self._reference_key = None
         self._duty_in_legend = False
+        # pyqtgraph's own items switch antialiasing on as they paint; the plain Qt items here
+        # (design curves, markers) take the view's hint.
+        self.setRenderHint(QtGui.QPainter.RenderHint.Antialiasing, True)
         self.ci.layout.setContentsMargins(*(4 * self.scale,) * 4)
         self.ci.layout.setVerticalSpacing(6 * self.scale)
 
@@ -231,13 +244,12 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.design_phase = DrawnCurve(self._pen("design"))
         for plot, item in ((self.magnitude_plot, self.design_magnitude), (self.phase_plot, self.design_phase)):
             item.setZValue(10)
-            plot.addItem(item)
-        marker = dict(pen=None, symbol="o", symbolSize=MARKER_SIZE * self.scale,
-                      symbolBrush=PALETTE["operating"],
-                      symbolPen=pg.mkPen(PALETTE["foreground"], width=1.0 * self.scale))
+            plot.addItem(item, ignoreBounds=True)   # the phase range follows the reference family
+        marker = dict(size=MARKER_SIZE * self.scale, brush=PALETTE["operating"],
+                      pen=pg.mkPen(PALETTE["foreground"], width=1.0 * self.scale))
         # One marker at the lowest operating speed, a second at the highest of a range.
-        self.operating_magnitude = PointMarkers(self.magnitude_plot, 2, 20, interactive, **marker)
-        self.operating_phase = PointMarkers(self.phase_plot, 2, 20, interactive, **marker)
+        self.operating_magnitude = PointMarkers(self.magnitude_plot, 2, 20, **marker)
+        self.operating_phase = PointMarkers(self.phase_plot, 2, 20, **marker)
         duty = dict(pen=None, symbol="d", symbolSize=MARKER_SIZE * self.scale, symbolBrush=PALETTE["background"],
                     symbolPen=pg.mkPen(PALETTE["operating"], width=2.0 * self.scale))
         self.duty_magnitude = self.magnitude_plot.plot(**duty)
@@ -250,9 +262,10 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
                                     brush=pg.mkBrush(255, 255, 255, 220),
                                     pen=pg.mkPen(PALETTE["reference"]))
         self.legend.setParentItem(self.magnitude_plot.getViewBox())
-        self.legend.addItem(self.design_magnitude, "design")
+        self._design_sample = pg.PlotDataItem(pen=self._pen("design"))   # the legend's picture
+        self.legend.addItem(self._design_sample, "design")
         self.legend.addItem(self.reference_magnitude[0], "reference")
-        self.legend.addItem(self.operating_magnitude.items[0], "operating point")
+        self.legend.addItem(self.operating_magnitude.sample, "operating point")
         self.legend.addItem(pg.PlotDataItem(pen=self._pen("target", QtCore.Qt.PenStyle.DashDotLine)), "target")
         self._legend_texts = {}
 
@@ -631,13 +644,14 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             for plot, item in ((self.magnitude_plot, self.comparison_magnitude),
                                (self.phase_plot, self.comparison_phase)):
                 item.setZValue(9)
-                plot.addItem(item)
+                plot.addItem(item, ignoreBounds=True)
+            self._comparison_sample = pg.PlotDataItem(pen=pen)
             self._comparison_label = None
         if curve is None:
             for item in (self.comparison_magnitude, self.comparison_phase):
                 item.set_curve((), (), False, self._x_range or RATIO_VIEW)
             if self._comparison_label is not None:
-                self.legend.removeItem(self.comparison_magnitude)
+                self.legend.removeItem(self._comparison_sample)
                 self._comparison_label = None
             return
         x = frequency_axis(curve.ratio, self._x_axis or "ratio", self._natural_frequency_hz)
@@ -648,8 +662,8 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         label = f"{curve.label} (equal peak)"
         if label != self._comparison_label:
             if self._comparison_label is not None:
-                self.legend.removeItem(self.comparison_magnitude)
-            self.legend.addItem(self.comparison_magnitude, label)
+                self.legend.removeItem(self._comparison_sample)
+            self.legend.addItem(self._comparison_sample, label)
             self._cache_rarely_changed()
             self._comparison_label = label
 

@@ -95,7 +95,7 @@ def test_window_opens_demo_project_and_shows_core_results(main_window, qtbot, pa
     # The symbol is drawn there: its item sits at the point in the view's (log10) coordinates.
     marker = window.plots.operating_magnitude.items[0]
     assert marker.isVisible()
-    at = marker.mapToView(QtCore.QPointF(0.0, 0.0))   # its one data point, as the view maps it
+    at = marker.pos()   # in its parent's coordinates: the view's (log10) data coordinates
     x_shown = expected.frequency_ratio * (1.0 if window.plots._x_axis == "ratio" else
                                           expected.natural_frequency_hz * (60.0 if window.plots._x_axis == "rpm" else 1.0))
     assert at.x() == pytest.approx(math.log10(x_shown), abs=1e-9)

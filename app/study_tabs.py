@@ -27,7 +27,7 @@ import numpy as np  # noqa: E402
 import pyqtgraph as pg  # noqa: E402
 
 from app.design_map_view import DesignMapView  # noqa: E402
-from app.design_panel import message_label, signals_blocked  # noqa: E402
+from app.design_panel import message_label  # noqa: E402
 from app.floor_view import FloorView  # noqa: E402
 from app.passage_view import PassageView  # noqa: E402
 from app.rigid_body_view import RigidBodyView  # noqa: E402
@@ -675,6 +675,6 @@ class StudyTabs(QtCore.QObject):
             except MountsmithError as error:
                 note = str(error)
         self.window.plots.show_comparison(curve)
-        with signals_blocked(self.material.compare_check):
-            self.material.compare_check.setToolTip(note or "Draws the other damping model with the same "
-                                                   "resonance peak, dashed")
+        tip = note or "Draws the other damping model with the same resonance peak, dashed"
+        if self.material.compare_check.toolTip() != tip:     # at every slider step otherwise
+            self.material.compare_check.setToolTip(tip)

@@ -43,7 +43,7 @@ MAX_REFERENCE_CURVES = 20
 #: Fixed axis ranges.
 MAGNITUDE_RANGE = (1e-3, 2e2)
 MAGNITUDE_DB_RANGE = (-60.0, 46.0)
-PHASE_RANGE = (-185.0, 5.0)
+PHASE_RANGE = (-192.0, 12.0)   # headroom: the 0 and -180 labels stay inside at any plot height
 RATIO_VIEW = (0.1, 10.0)
 RATIO_VIEW_WIDE = (0.1, 100.0)
 
@@ -201,6 +201,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             plot.getViewBox().disableAutoRange()
             plot.showGrid(x=True, y=True, alpha=PALETTE["grid_alpha"])
             style_axes(plot)
+            # The view (regions, curves, markers) above the axes and their grid lines, in the
+            # window and in exports alike: no grid line crosses a marker or the design curve.
+            plot.getViewBox().setZValue(max(plot.getAxis(name).zValue() for name in ("left", "bottom")) + 1)
         self._style_axes()
 
         # ---- fixed items: isolation region, crossover lines, speed band, target line
@@ -286,7 +289,6 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self._layered = interactive
         self._static_key = None
         self._layers = None            # (key, static pixmap)
-        self._fit_key = None
         self._own_no_contents = {}     # item -> its own ItemHasNoContents flag
         self.layer_renders = 0
         if self._layered:
@@ -332,9 +334,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         return items
 
     def _layer_key(self):
-        # The phase plot's y range follows its data (setLogMode turns auto-range on); a slider
-        # step moves it by about 1e-8 of its span. Ranges count as changed from 1e-4 of the
-        # span (under 0.1 px here).
+        # Ranges count as changed from 1e-4 of their span (under 0.1 px here).
         def steps(low, high):
             resolution = max(abs(high - low), 1e-300) * 1e-4
             return round(low / resolution), round(high / resolution)
@@ -379,11 +379,6 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
     def paintEvent(self, event):
         if self._layered:
             self.scene().prepareForPaint()
-            fit_key = (self._static_key,) + tuple(
-                (plot.getViewBox().width(), plot.getViewBox().height()) for plot in (self.magnitude_plot, self.phase_plot))
-            if fit_key != self._fit_key:
-                self._fit_key = fit_key
-                self._fit_phase_range()
             key = self._layer_key()
             if self._layers is None or self._layers[0] != key:
                 self._render_layers(key)
@@ -409,19 +404,6 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             self._static_key = key
             if self._layered:
                 self.viewport().update()
-
-    def _fit_phase_range(self) -> None:
-        """Auto-range the phase plot's y axis once, as pyqtgraph would at this paint, then hold it.
-
-        The phase y range follows the data (``setLogMode`` turns auto-range on) with a padding
-        that depends on the plot's height. A slider step moves it by about 1e-8 of its span yet
-        costs a second repaint, so an interactive plot fits it only when the static layers or
-        the plot sizes change.
-        """
-        view = self.phase_plot.getViewBox()
-        view.enableAutoRange(axis=pg.ViewBox.YAxis)
-        view.updateAutoRange()
-        view.disableAutoRange(axis=pg.ViewBox.YAxis)
 
     # ------------------------------------------------------------------ styling
     def _pen(self, role: str, style=QtCore.Qt.PenStyle.SolidLine) -> QtGui.QPen:
@@ -599,6 +581,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             self._magnitude_scale = scale
             self.magnitude_plot.setLogMode(x=True, y=scale == "ratio")
             self.phase_plot.setLogMode(x=True, y=False)
+            self.phase_plot.setYRange(*PHASE_RANGE, padding=0)   # fixed: setLogMode turned auto-range on
             text, units = X_AXIS_LABELS[x_axis]
             self.phase_plot.setLabel("bottom", text, units=units or None, **self._label_style())
             self.magnitude_plot.setLabel("left", "Transmissibility" + (" (dB)" if scale == "db" else ""),

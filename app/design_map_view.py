@@ -22,8 +22,7 @@ from PySide6 import QtCore, QtWidgets
 import numpy as np
 import pyqtgraph as pg
 
-from app.style import CAUTION_STYLE, PALETTE, style_axes
-from core.cautions import CAUTION_LINE
+from app.style import PALETTE, caution_label, style_axes
 from core.design_map import DesignMap
 
 #: Colour scale of the heat map, dB of transmissibility (fixed, so maps compare).
@@ -110,9 +109,7 @@ class DesignMapView(QtWidgets.QWidget):
         self.plot.addItem(self.marker)
         legend.addItem(self.marker, "design point")
 
-        self.caution_label = QtWidgets.QLabel(CAUTION_LINE)
-        self.caution_label.setWordWrap(True)
-        self.caution_label.setStyleSheet(CAUTION_STYLE)
+        self.caution_label = caution_label()
         layout = QtWidgets.QVBoxLayout(self)
         layout.addWidget(self.plot_widget, 1)
         layout.addWidget(self.caution_label)

@@ -14,8 +14,7 @@ from PySide6 import QtCore, QtWidgets
 
 import pyqtgraph as pg
 
-from app.style import FIELD_ERROR_STYLE, LINE_WIDTH, MARKER_SIZE, PALETTE, style_axes
-from core.cautions import CAUTION_LINE
+from app.style import FIELD_ERROR_STYLE, LINE_WIDTH, MARKER_SIZE, PALETTE, caution_label, style_axes
 from core.errors import InputError
 from core.floor import CriterionCheck, FloorSpectrum, parse_floor_rows
 
@@ -84,8 +83,7 @@ class FloorView(QtWidgets.QWidget):
         self.add_button.clicked.connect(self._add_row)
         self.remove_button.clicked.connect(self._remove_row)
 
-        caution = QtWidgets.QLabel(CAUTION_LINE)
-        caution.setWordWrap(True)
+        caution = caution_label()
 
         buttons = QtWidgets.QHBoxLayout()
         buttons.addWidget(self.add_button)

@@ -27,7 +27,7 @@ from app.results_panel import ResultsPanel  # noqa: E402
 from app.studies_panel import default_floor_study  # noqa: E402
 from app.study_tabs import StudyTabs  # noqa: E402
 from app.settings import APPLICATION, ORGANIZATION, AppSettings  # noqa: E402
-from app.style import CAUTION_STYLE  # noqa: E402
+from app.style import caution_label  # noqa: E402
 from app import export  # noqa: E402
 from core.cautions import CAUTION_LINE, SAFETY_TITLE, safety_text  # noqa: E402
 from core.design_model import DesignModel  # noqa: E402
@@ -151,9 +151,7 @@ class MainWindow(QtWidgets.QMainWindow):
         self.readout_label.setObjectName("readout")
         self.readout_label.setMinimumWidth(360)
         self.statusBar().addWidget(self.readout_label)
-        self.caution_label = QtWidgets.QLabel(CAUTION_LINE)
-        self.caution_label.setObjectName("status_caution")
-        self.caution_label.setStyleSheet(CAUTION_STYLE)
+        self.caution_label = caution_label("status_caution", wrap=False)
         self.statusBar().addPermanentWidget(self.caution_label)
         self.plots.readout_changed.connect(self._show_readout)
 

@@ -13,8 +13,7 @@ from PySide6 import QtCore, QtWidgets
 
 import pyqtgraph as pg
 
-from app.style import CAUTION_STYLE, LINE_WIDTH, MARKER_SIZE, PALETTE, style_axes
-from core.cautions import CAUTION_LINE
+from app.style import LINE_WIDTH, MARKER_SIZE, PALETTE, caution_label, style_axes
 from core.passage import PassageResult
 
 _DIRECTION_TITLES = {"up": "Run-up", "down": "Coast-down"}
@@ -45,9 +44,7 @@ class PassageView(QtWidgets.QWidget):
         self.summary_label = QtWidgets.QLabel("No simulation yet")
         self.summary_label.setObjectName("summary")
         self.summary_label.setWordWrap(True)
-        self.caution_label = QtWidgets.QLabel(CAUTION_LINE)
-        self.caution_label.setWordWrap(True)
-        self.caution_label.setStyleSheet(CAUTION_STYLE)
+        self.caution_label = caution_label()
         layout = QtWidgets.QVBoxLayout(self)
         layout.addWidget(self.plots, 1)
         layout.addWidget(self.summary_label)

@@ -15,8 +15,7 @@ from __future__ import annotations
 from PySide6 import QtCore, QtGui, QtWidgets
 
 from app.design_panel import message_label
-from app.style import CAUTION_STYLE
-from core.cautions import CAUTION_LINE
+from app.style import caution_label
 from core.design import DesignInputs
 from core.design_model import Evaluation
 from core.units import format_value, format_values
@@ -219,10 +218,7 @@ class ResultsPanel(QtWidgets.QWidget):
         self.warnings_label.setWordWrap(True)
         outer.addWidget(self.warnings_label)
         outer.addStretch(1)
-        self.caution_label = QtWidgets.QLabel(CAUTION_LINE)
-        self.caution_label.setObjectName("results_caution")
-        self.caution_label.setWordWrap(True)
-        self.caution_label.setStyleSheet(CAUTION_STYLE)
+        self.caution_label = caution_label("results_caution")
         outer.addWidget(self.caution_label)
         self.setContextMenuPolicy(QtCore.Qt.ContextMenuPolicy.ActionsContextMenu)
         copy = QtGui.QAction("Copy results", self)

@@ -25,8 +25,7 @@ from PySide6.QtWidgets import (
 
 import pyqtgraph as pg  # after PySide6, so that pyqtgraph binds to it
 
-from app.style import FONT_POINTS, PALETTE, style_axes
-from core.cautions import CAUTION_LINE
+from app.style import FONT_POINTS, PALETTE, caution_label, style_axes
 from core.errors import InputError
 from core.rigid_body import COORDINATES, Mount, RigidBody, RigidBodyModes, StaticLoads
 from core.units import to_display, unit_symbol
@@ -171,9 +170,7 @@ class RigidBodyView(QWidget):
 
         self.note_label = QLabel()
         self.note_label.setWordWrap(True)
-        self.caution_label = QLabel(CAUTION_LINE)
-        self.caution_label.setWordWrap(True)
-        self.caution_label.setStyleSheet(f"color: {PALETTE['caution_text']};")
+        self.caution_label = caution_label()
 
         layout = QVBoxLayout(self)
         layout.addWidget(self._group("Rigid-body modes (kinetic-energy share per coordinate)", self.modes_table))

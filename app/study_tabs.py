@@ -33,9 +33,8 @@ from app.passage_view import PassageView  # noqa: E402
 from app.rigid_body_view import RigidBodyView  # noqa: E402
 from app.studies_panel import (  # noqa: E402
     FloorEditor, MaterialEditor, PassageEditor, RigidBodyEditor, TwoStageEditor)
-from app.style import CAUTION_STYLE, LINE_WIDTH, PALETTE, style_axes  # noqa: E402
+from app.style import LINE_WIDTH, PALETTE, caution_label, style_axes  # noqa: E402
 from core import rigid_body, studies  # noqa: E402
-from core.cautions import CAUTION_LINE  # noqa: E402
 from core.curves import drawn_curve_family  # noqa: E402
 from core.errors import MountsmithError  # noqa: E402
 from core.transmissibility import damping_with_same_peak  # noqa: E402
@@ -219,9 +218,7 @@ class StudyTabs(QtCore.QObject):
                 row.addWidget(view)
                 view.displacement_plot.legend.setVisible(False)  # it covers the peak at this size: the header says it
             tab.content_layout.addLayout(row, 1)
-            caution = _label(CAUTION_LINE)
-            caution.setStyleSheet(CAUTION_STYLE)
-            tab.content_layout.addWidget(caution)
+            tab.content_layout.addWidget(caution_label())
         self._later("passage", views)
         return tab
 
@@ -311,9 +308,7 @@ class StudyTabs(QtCore.QObject):
             plot.addItem(self.two_stage_speed, ignoreBounds=True)
             legend.addItem(pg.PlotDataItem(pen=pg.mkPen(PALETTE["operating"], width=1.5)), "lowest operating speed")
             tab.content_layout.addWidget(self.two_stage_plot, 1)
-            caution = _label(CAUTION_LINE)
-            caution.setStyleSheet(CAUTION_STYLE)
-            tab.content_layout.addWidget(caution)
+            tab.content_layout.addWidget(caution_label())
         self._later("two_stage", views)
         return tab
 

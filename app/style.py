@@ -9,6 +9,10 @@ very light green-blue wash.
 """
 from __future__ import annotations
 
+from PySide6 import QtWidgets
+
+from core.cautions import CAUTION_LINE
+
 #: Plot colours (hex RGB) and fill colours (RGBA tuples).
 PALETTE = {
     "background": "#ffffff",
@@ -52,3 +56,13 @@ def style_axes(plot, names=("left", "bottom"), no_prefix=("left", "bottom")) -> 
             axis.enableAutoSIPrefix(False)
         axis.setPen(PALETTE["foreground"])
         axis.setTextPen(PALETTE["foreground"])
+
+
+def caution_label(name: str | None = None, wrap: bool = True) -> QtWidgets.QLabel:
+    """The one-line safety caution as a label in the caution colour (every view shows it)."""
+    label = QtWidgets.QLabel(CAUTION_LINE)
+    label.setWordWrap(wrap)
+    label.setStyleSheet(CAUTION_STYLE)
+    if name:
+        label.setObjectName(name)
+    return label

@@ -47,11 +47,15 @@ EXCITATION_ROWS = ("excitation_force", "transmitted_force", "transmitted_per_mou
 class ValueText(QtWidgets.QWidget):
     """One word-wrapped, plain-text result value.
 
-    It repaints itself for a new text and calls ``updateGeometry`` only when the text needs
-    more lines than it has had at the current width: a value never shrinks while its width
-    stays (until :meth:`forget_height`), so rows do not jump up and down during a slider drag,
-    and the panel is not laid out again at every step. The width hint is fixed
+    It repaints itself for a new text and calls ``updateGeometry`` only when its height
+    changes. With ``keep_height`` (the default) a value never shrinks while its width stays
+    (until :meth:`forget_height`), so rows do not jump up and down during a slider drag, and
+    the panel is not laid out again at every step. The width hint is fixed
     (``HINT_CHARACTERS`` average characters): the layout gives a value the width of its column.
+
+    A slider step sets about ten values, so the per-text work is kept small: the drawn text,
+    the font key and the two colours are kept between paints, and a one-line text that fits is
+    measured by its advance instead of a word-wrapped layout.
     """
 
     #: Width hint in average character widths.
@@ -61,10 +65,17 @@ class ValueText(QtWidgets.QWidget):
     _UNBROKEN = str.maketrans({"/": "\u2060/\u2060"})
     _FLAGS = int(QtCore.Qt.TextFlag.TextWordWrap) | int(QtCore.Qt.AlignmentFlag.AlignLeft) | \
         int(QtCore.Qt.AlignmentFlag.AlignTop)
+    #: Events after which the kept font key and colours are read again.
+    _RESTYLE = frozenset({QtCore.QEvent.Type.FontChange, QtCore.QEvent.Type.PaletteChange,
+                          QtCore.QEvent.Type.StyleChange, QtCore.QEvent.Type.ApplicationFontChange,
+                          QtCore.QEvent.Type.ApplicationPaletteChange})
 
-    def __init__(self, text: str = "", parent=None):
+    def __init__(self, text: str = "", parent=None, keep_height: bool = True):
         super().__init__(parent)
         self._text = text
+        self._drawn = text.translate(self._UNBROKEN)
+        self._keep_height = keep_height
+        self._style = None         # (font key, font metrics, background, text colour)
         self._height_for = None    # (text, width, font key), height
         self._tallest = None       # (width, font key), the most height the texts needed there
         policy = QtWidgets.QSizePolicy(QtWidgets.QSizePolicy.Policy.Preferred,
@@ -81,9 +92,11 @@ class ValueText(QtWidgets.QWidget):
     def setText(self, text: str) -> None:  # noqa: N802 (Qt naming, as QLabel)
         if text == self._text:
             return
-        before = self.heightForWidth(self.width())
+        width = self.width()
+        before = self.heightForWidth(width)
         self._text = text
-        if self.heightForWidth(self.width()) != before:
+        self._drawn = text.translate(self._UNBROKEN)
+        if self.heightForWidth(width) != before:
             self.updateGeometry()
         self.update()
 
@@ -96,16 +109,31 @@ class ValueText(QtWidgets.QWidget):
             self._tallest = None
             self.updateGeometry()
 
+    def changeEvent(self, event) -> None:  # noqa: N802
+        if event.type() in self._RESTYLE:
+            self._style = None
+        super().changeEvent(event)
+
+    def _styled(self) -> tuple:
+        if self._style is None:
+            palette = self.palette()
+            self._style = (self.font().key(), self.fontMetrics(),
+                           palette.color(QtGui.QPalette.ColorRole.Window),
+                           palette.color(QtGui.QPalette.ColorRole.WindowText))
+        return self._style
+
     def heightForWidth(self, width: int) -> int:  # noqa: N802
-        font = self.font().key()
+        font, metrics = self._styled()[:2]
         key = (self._text, width, font)
         if self._height_for is None or self._height_for[0] != key:   # layouts ask many times
-            metrics = self.fontMetrics()
-            bounds = metrics.boundingRect(QtCore.QRect(0, 0, max(width, 1), 1 << 20), self._FLAGS,
-                                          self._text.translate(self._UNBROKEN))
-            self._height_for = (key, max(bounds.height(), metrics.height()))
+            line = metrics.height()
+            if "\n" in self._drawn or metrics.horizontalAdvance(self._drawn) > width:
+                bounds = metrics.boundingRect(QtCore.QRect(0, 0, max(width, 1), 1 << 20), self._FLAGS,
+                                              self._drawn)
+                line = max(bounds.height(), line)
+            self._height_for = (key, line)
         height = self._height_for[1]
-        if width == self.width():      # the width it has: never less than it has needed there
+        if self._keep_height and width == self.width():   # never less than it has needed there
             if self._tallest is not None and self._tallest[0] == (width, font):
                 height = max(height, self._tallest[1])
             self._tallest = ((width, font), height)
@@ -120,10 +148,12 @@ class ValueText(QtWidgets.QWidget):
         return QtCore.QSize(metrics.averageCharWidth() * 8, metrics.height())
 
     def paintEvent(self, _event) -> None:  # noqa: N802
+        background, colour = self._styled()[2:]
         painter = QtGui.QPainter(self)
-        painter.fillRect(self.rect(), self.palette().color(QtGui.QPalette.ColorRole.Window))
-        painter.setPen(self.palette().color(QtGui.QPalette.ColorRole.WindowText))
-        painter.drawText(self.rect(), self._FLAGS, self._text.translate(self._UNBROKEN))
+        rect = self.rect()
+        painter.fillRect(rect, background)
+        painter.setPen(colour)
+        painter.drawText(rect, self._FLAGS, self._drawn)
         painter.end()
 
 
@@ -213,9 +243,10 @@ class ResultsPanel(QtWidgets.QWidget):
         self._study_warnings: tuple = ()
         warnings_title = QtWidgets.QLabel("<b>Warnings</b>")
         outer.addWidget(warnings_title)
-        self.warnings_label = QtWidgets.QLabel("none")
+        # A warning can carry a number that changes with every slider step; as a ValueText it
+        # asks for a new layout only when its height changes (a QLabel asked at every text).
+        self.warnings_label = ValueText("none", keep_height=False)
         self.warnings_label.setObjectName("results_warnings")
-        self.warnings_label.setWordWrap(True)
         outer.addWidget(self.warnings_label)
         outer.addStretch(1)
         self.caution_label = caution_label("results_caution")
@@ -289,5 +320,4 @@ class ResultsPanel(QtWidgets.QWidget):
     def _show_warnings(self) -> None:
         warnings = self._design_warnings + self._study_warnings
         text = "\n".join(f"• {w}" for w in warnings) if warnings else "none"
-        if self.warnings_label.text() != text:     # a repaint and a new layout otherwise
-            self.warnings_label.setText(text)
+        self.warnings_label.setText(text)         # equal texts are left alone

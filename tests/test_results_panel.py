@@ -2,7 +2,7 @@
 from __future__ import annotations
 
 import pytest
-from PySide6 import QtWidgets
+from PySide6 import QtCore, QtWidgets
 
 from app.results_panel import ResultsPanel, ValueText
 from tests.conftest import ROOT
@@ -61,3 +61,66 @@ def test_copy_results_gives_each_shown_row_as_text(main_window):
     assert len(copy) == 1
     copy[0].trigger()
     assert QtWidgets.QApplication.clipboard().text() == text
+
+
+class _LayoutRequests(QtCore.QObject):
+    """Counts the layout requests a widget receives."""
+
+    def __init__(self):
+        super().__init__()
+        self.count = 0
+
+    def eventFilter(self, _watched, event):  # noqa: N802
+        if event.type() == QtCore.QEvent.Type.LayoutRequest:
+            self.count += 1
+        return False
+
+
+def test_a_new_text_of_the_same_height_asks_for_no_layout(qtbot):
+    holder, value = _shown_value(qtbot, "93.4 N", 300)
+    QtWidgets.QApplication.processEvents()       # the layout of the first show
+    requests = _LayoutRequests()
+    holder.installEventFilter(requests)
+    for number in range(20):                     # a drag: new numbers, one line each
+        value.setText(f"{93.4 + number / 10:.4g} N")
+        QtWidgets.QApplication.processEvents()
+    assert requests.count == 0
+    value.setText(LONG * 3)                      # more lines: the layout must grow the row
+    QtWidgets.QApplication.processEvents()
+    assert requests.count >= 1
+
+
+def test_warnings_shrink_at_once_and_change_without_a_layout(main_window):
+    panel: ResultsPanel = main_window(ROOT / "demo_projects" / "rooftop_air_handler.json").results
+    warnings = panel.warnings_label
+    line = warnings.fontMetrics().height()
+    requests = _LayoutRequests()
+    panel.installEventFilter(requests)
+    panel._design_warnings = ("Per-mount loads differ by 27.3 % of the mean.",)
+    panel._show_warnings()
+    for _ in range(3):                           # the panel's layout, then the scroll area's
+        QtWidgets.QApplication.processEvents()
+    before = requests.count
+    panel._design_warnings = ("Per-mount loads differ by 27.4 % of the mean.",)
+    panel._show_warnings()
+    QtWidgets.QApplication.processEvents()
+    assert warnings.text() == "• Per-mount loads differ by 27.4 % of the mean."
+    assert requests.count == before              # same height: no new layout of the panel
+    panel._design_warnings = tuple(f"Warning number {n} with a few words." for n in range(6))
+    panel._show_warnings()
+    QtWidgets.QApplication.processEvents()
+    assert warnings.height() >= 6 * line
+    panel._design_warnings = ()
+    panel._show_warnings()
+    QtWidgets.QApplication.processEvents()
+    assert warnings.text() == "none" and warnings.height() < 2 * line   # no blank rows left behind
+
+
+def test_a_larger_font_is_measured_again(qtbot):
+    _holder, value = _shown_value(qtbot, SHORT, 300)
+    small = value.heightForWidth(value.width())
+    font = value.font()
+    font.setPointSizeF(font.pointSizeF() * 2)
+    value.setFont(font)
+    value.forget_height()
+    assert value.heightForWidth(value.width()) > small

@@ -378,14 +378,17 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
 
     def paintEvent(self, event):
         if self._layered:
-            self.scene().prepareForPaint()
+            # Only the view boxes need preparing for the live items (their transforms); the
+            # scene's prepareForPaint signal also makes every text item of the static layer
+            # recompute its transform, which the layer render (scene.render) does anyway.
+            for plot in (self.magnitude_plot, self.phase_plot):
+                plot.getViewBox().prepareForPaint()
             key = self._layer_key()
             if self._layers is None or self._layers[0] != key:
                 self._render_layers(key)
                 if event.rect() != self.viewport().rect():
                     self.viewport().update()   # the rest of the viewport shows the old layers
-            # pyqtgraph's paintEvent would prepare the scene a second time (every text item
-            # updates its transform again); Qt's own paints the items.
+            # pyqtgraph's paintEvent would prepare the whole scene; Qt's own paints the items.
             return QtWidgets.QGraphicsView.paintEvent(self, event)
         return super().paintEvent(event)
 

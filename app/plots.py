@@ -9,17 +9,18 @@ pyqtgraph log axes take log10 coordinates for every item other than
 PlotDataItem (lines, regions, text), so those positions go through ``_lx``/``_ly``.
 
 Layered painting (interactive plots only): a slider drag changes only the design curves,
-markers, legend and crosshair. Everything else (grid, axes, reference family, regions,
-lines, labels) is rendered into one pixmap when it changes, the view's background; each
-paint draws that pixmap and the live items over it. The grid and axes therefore lie under
-the curves in the window (pyqtgraph stacks them above; a second, transparent layer for
-them cost about 0.2 ms a frame, measured). Exports (``interactive=False``) paint every
-item in pyqtgraph's own order.
+markers and crosshair. Everything else (grid, axes, reference family, regions, lines, labels)
+is rendered into one pixmap when it changes, and the legend into a small pixmap of its own.
+Each paint draws the background pixmap, paints the live items over it (their own ``paint``,
+clipped to their view box, bottom to top) and puts the legend on top, without Qt's walk over
+the whole scene. The grid and axes therefore lie under the curves in the window (pyqtgraph
+stacks them above). Exports (``interactive=False``) paint every item in pyqtgraph's own order.
 """
 from __future__ import annotations
 
 import math
 import os
+import typing
 
 os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
 from PySide6 import QtCore, QtGui, QtWidgets  # noqa: E402  (PySide6 before pyqtgraph)
@@ -152,6 +153,16 @@ class PointMarkers:
     def points(self) -> tuple[np.ndarray, np.ndarray]:
         """The shown points in data units (x, y), as given to :meth:`set_points`."""
         return self._points
+
+
+class _Layers(typing.NamedTuple):
+    """The rendered layers of an interactive plot widget and what they were rendered for."""
+
+    key: tuple                  # TransmissibilityPlots._layer_key() at the render
+    background: QtGui.QPixmap   # the static items, the whole viewport
+    legend_at: QtCore.QPoint    # where the legend pixmap goes (viewport pixels)
+    legend: QtGui.QPixmap       # the legend, transparent around it
+    paint_list: list            # (clip QRect, items bottom to top) of each view box
 
 
 class TransmissibilityPlots(pg.GraphicsLayoutWidget):
@@ -288,30 +299,16 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
 
         self._layered = interactive
         self._static_key = None
-        self._layers = None            # (key, static pixmap)
-        self._own_no_contents = {}     # item -> its own ItemHasNoContents flag
+        self._layers = None            # a _Layers once rendered
         self.layer_renders = 0
         if self._layered:
             self.setCacheMode(QtWidgets.QGraphicsView.CacheModeFlag.CacheNone)  # the layers are the cache
-            self._cache_rarely_changed()
-
-    def _cache_rarely_changed(self) -> None:
-        """Interactive plots: the legend (with its texts) and the duty markers paint from a pixmap.
-
-        They are live items, painted at every frame, but change far less often than the design
-        curve: Qt re-renders such an item only after its own ``update`` (a new legend text, new
-        duty points). Exports keep painting every item directly (vector output).
-        """
-        if not self._layered:
-            return
-        cached = QtWidgets.QGraphicsItem.CacheMode.DeviceCoordinateCache
-        items, index = [self.legend], 0
-        while index < len(items):            # the legend and everything inside it
-            items += items[index].childItems()
-            index += 1
-        for item in items + [self.duty_magnitude.scatter, self.duty_phase.scatter]:
-            if item.cacheMode() != cached:
-                item.setCacheMode(cached)
+            # Every paint draws the whole viewport, and the methods that change live items ask
+            # for it (``_repaint``): Qt's scene learns that a full update it asked for was done
+            # only when Qt paints its items, which this view does not, so it stops passing
+            # item changes on to the view.
+            self.setViewportUpdateMode(QtWidgets.QGraphicsView.ViewportUpdateMode.FullViewportUpdate)
+            self._paint_option = QtWidgets.QStyleOptionGraphicsItem()
 
     def _add_reference_items(self, count: int) -> None:
         """Have at least ``count`` (at most MAX_REFERENCE_CURVES) reference curves and labels."""
@@ -325,10 +322,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
 
     # ------------------------------------------------------------------ layered painting
     def _live_items(self) -> list:
-        """Items that change during a slider drag; painted every frame over the static layer."""
+        """Items that change during a slider drag; painted at every frame over the static layer."""
         items = [self.design_magnitude, self.design_phase, *self.operating_magnitude.items,
-                 *self.operating_phase.items, self.duty_magnitude, self.duty_phase, self.legend,
-                 *self.crosshair_lines]
+                 *self.operating_phase.items, self.duty_magnitude, self.duty_phase, *self.crosshair_lines]
         if getattr(self, "comparison_magnitude", None) is not None:
             items += [self.comparison_magnitude, self.comparison_phase]
         return items
@@ -342,71 +338,118 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         views = tuple((tuple(plot.getViewBox().sceneBoundingRect().getRect()),
                        tuple(steps(*span) for span in plot.getViewBox().viewRange()))
                       for plot in (self.magnitude_plot, self.phase_plot))
+        legend = (tuple(label.text for _sample, label in self.legend.items),
+                  tuple(self.legend.sceneBoundingRect().getRect()))
+        live = getattr(self, "comparison_magnitude", None) is not None   # the live items' paint list
         viewport = self.viewport()
-        return (self._static_key, viewport.width(), viewport.height(), viewport.devicePixelRatioF(), views)
+        return (self._static_key, viewport.width(), viewport.height(), viewport.devicePixelRatioF(), views,
+                legend, live)
 
     def _render_layers(self, key) -> None:
-        """Render every item that is not live into one pixmap, the view's background."""
+        """Render the static items into the background pixmap and the legend into its own.
+
+        Each render shows one part of the scene: every item outside it is marked as having no
+        contents for the render (its children still draw). The live items' paint list, with the
+        clip rectangle of their view box, is made here too.
+        """
         scene = self.scene()
-        live = set(self._live_items())
-        live_of = {}
+        live = self._live_items()
+        live_set = set(live)
+        part_of = {}
         for item in scene.items():
             parent = item
-            while parent is not None and parent not in live:
+            while parent is not None and parent not in live_set and parent is not self.legend:
                 parent = parent.parentItem()
-            live_of[item] = parent is not None
+            part_of[item] = "static" if parent is None else "legend" if parent is self.legend else "live"
         no_contents = QtWidgets.QGraphicsItem.GraphicsItemFlag.ItemHasNoContents
-        own = {item: self._own_no_contents.get(item, bool(item.flags() & no_contents)) for item in live_of}
-        self._own_no_contents = own
-        viewport = self.viewport()
-        ratio = viewport.devicePixelRatioF()
-        target = QtCore.QRectF(0.0, 0.0, viewport.width(), viewport.height())
-        source = self.viewportTransform().inverted()[0].mapRect(target)
-        for item, is_live in live_of.items():
-            item.setFlag(no_contents, own[item] or is_live)
-        pixmap = QtGui.QPixmap(round(target.width() * ratio), round(target.height() * ratio))
-        pixmap.setDevicePixelRatio(ratio)
-        pixmap.fill(self.backgroundBrush().color())
-        painter = QtGui.QPainter(pixmap)
-        painter.setRenderHints(self.renderHints())
-        scene.render(painter, target, source, QtCore.Qt.AspectRatioMode.IgnoreAspectRatio)
-        painter.end()
-        for item, is_live in live_of.items():
-            item.setFlag(no_contents, own[item] or not is_live)
-        self._layers = (key, pixmap)
+        own = {item: bool(item.flags() & no_contents) for item in part_of}
+        viewport_rect = self.viewport().rect()
+        legend_rect = self.mapFromScene(self.legend.sceneBoundingRect()).boundingRect() \
+            .adjusted(-1, -1, 1, 1).intersected(viewport_rect)
+
+        def render(part: str, rect: QtCore.QRect, fill: QtGui.QColor) -> QtGui.QPixmap:
+            for item, item_part in part_of.items():
+                item.setFlag(no_contents, own[item] or item_part != part)
+            ratio = self.viewport().devicePixelRatioF()
+            pixmap = QtGui.QPixmap(max(round(rect.width() * ratio), 1), max(round(rect.height() * ratio), 1))
+            pixmap.setDevicePixelRatio(ratio)
+            pixmap.fill(fill)
+            painter = QtGui.QPainter(pixmap)
+            painter.setRenderHints(self.renderHints())
+            source = self.viewportTransform().inverted()[0].mapRect(QtCore.QRectF(rect))
+            scene.render(painter, QtCore.QRectF(0.0, 0.0, rect.width(), rect.height()), source,
+                         QtCore.Qt.AspectRatioMode.IgnoreAspectRatio)
+            painter.end()
+            return pixmap
+
+        background = render("static", viewport_rect, self.backgroundBrush().color())
+        legend = render("legend", legend_rect, QtGui.QColor(0, 0, 0, 0))
+        for item in part_of:
+            item.setFlag(no_contents, own[item])
+        paint_list = []
+        for plot in (self.magnitude_plot, self.phase_plot):
+            view = plot.getViewBox()
+            clip = self.mapFromScene(view.sceneBoundingRect()).boundingRect()
+            ordered = sorted((item for item in live if view.isAncestorOf(item)), key=lambda item: item.zValue())
+            drawn = []
+            for item in ordered:        # an item, then its children in stacking order
+                drawn += [item] + sorted(item.childItems(), key=lambda child: child.zValue())
+            paint_list.append((clip, [item for item in drawn if not own[item]]))
+        self._layers = _Layers(key, background, legend_rect.topLeft(), legend, paint_list)
         self.layer_renders += 1
 
     def paintEvent(self, event):
-        if self._layered:
-            # Only the view boxes need preparing for the live items (their transforms); the
-            # scene's prepareForPaint signal also makes every text item of the static layer
-            # recompute its transform, which the layer render (scene.render) does anyway.
-            for plot in (self.magnitude_plot, self.phase_plot):
-                plot.getViewBox().prepareForPaint()
-            key = self._layer_key()
-            if self._layers is None or self._layers[0] != key:
-                self._render_layers(key)
-                if event.rect() != self.viewport().rect():
-                    self.viewport().update()   # the rest of the viewport shows the old layers
-            # pyqtgraph's paintEvent would prepare the whole scene; Qt's own paints the items.
-            return QtWidgets.QGraphicsView.paintEvent(self, event)
-        return super().paintEvent(event)
+        if not self._layered:
+            return super().paintEvent(event)
+        # Only the view boxes need preparing for the live items (their transforms); pyqtgraph's
+        # scene-wide prepareForPaint also makes every static text item recompute its transform,
+        # which the layer render (scene.render) does anyway.
+        for plot in (self.magnitude_plot, self.phase_plot):
+            plot.getViewBox().prepareForPaint()
+        key = self._layer_key()
+        if self._layers is None or self._layers.key != key:
+            self._render_layers(key)
+            if event.rect() != self.viewport().rect():
+                self.viewport().update()   # the rest of the viewport shows the old layers
+        self._paint_live(event.region())
 
-    def drawBackground(self, painter, rect):
-        if self._layered and self._layers is not None:
+    def _paint_live(self, region: QtGui.QRegion) -> None:
+        """The background layer, the live items (each in its view box) and the legend on top.
+
+        Qt's own scene painting would visit every item of the scene at every frame (about 130,
+        with pyqtgraph's bounds computed in Python); only the dozen live ones change.
+        """
+        layers = self._layers
+        viewport = self.viewport()
+        view_transform = self.viewportTransform()
+        painter = QtGui.QPainter(viewport)
+        painter.setClipRegion(region)
+        painter.drawPixmap(0, 0, layers.background)
+        painter.setRenderHints(self.renderHints())
+        for clip, items in layers.paint_list:
             painter.save()
-            painter.resetTransform()
-            painter.drawPixmap(0, 0, self._layers[1])
+            painter.setClipRect(clip, QtCore.Qt.ClipOperation.IntersectClip)
+            for item in items:
+                if item.isVisible():
+                    item.boundingRect()     # pyqtgraph items compute what they draw there
+                    painter.save()
+                    painter.setTransform(item.deviceTransform(view_transform))
+                    item.paint(painter, self._paint_option, viewport)
+                    painter.restore()
             painter.restore()
-        else:
-            super().drawBackground(painter, rect)
+        painter.drawPixmap(layers.legend_at, layers.legend)
+        painter.end()
+
+    def _repaint(self) -> None:
+        """Interactive plots: paint the viewport at the next event loop pass (live items changed)."""
+        if self._layered:
+            self.viewport().update()
 
     def _static_changed(self, key) -> None:
         """The static layers show ``key``; a new key re-renders them at the next paint."""
         if key != self._static_key:
             self._static_key = key
-            if self._layered:
-                self.viewport().update()
+            self._repaint()
 
     # ------------------------------------------------------------------ styling
     def _pen(self, role: str, style=QtCore.Qt.PenStyle.SolidLine) -> QtGui.QPen:
@@ -533,6 +576,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         bands = tuple(region for region in (tuple(band.getRegion()) for band in self.speed_bands if band.isVisible())
                       if region[1] - region[0] > 1e-9)   # a single speed's band has no width: nothing drawn
         self._static_changed((reference_key, self._x_range, design.isolation_percent, bands))
+        self._repaint()
 
     @staticmethod
     def _set_data(item: pg.PlotDataItem, x: np.ndarray, y: np.ndarray) -> None:
@@ -549,9 +593,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             self._duty_in_legend = shown
             if shown:
                 self.legend.addItem(self.duty_magnitude, "duty speeds")
-                self._cache_rarely_changed()
             else:
                 self.legend.removeItem(self.duty_magnitude)
+            self.legend.layout.activate()   # rows in place now, for the legend layer
 
     def _set_text(self, item: pg.TextItem, text: str, x: float, y: float) -> None:
         if item.toPlainText() != text:
@@ -638,7 +682,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
                 item.set_curve((), (), False, self._x_range or RATIO_VIEW)
             if self._comparison_label is not None:
                 self.legend.removeItem(self._comparison_sample)
+                self.legend.layout.activate()
                 self._comparison_label = None
+            self._repaint()
             return
         x = frequency_axis(curve.ratio, self._x_axis or "ratio", self._natural_frequency_hz)
         scale = self._magnitude_scale or "ratio"
@@ -650,8 +696,9 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             if self._comparison_label is not None:
                 self.legend.removeItem(self._comparison_sample)
             self.legend.addItem(self._comparison_sample, label)
-            self._cache_rarely_changed()
+            self.legend.layout.activate()
             self._comparison_label = label
+        self._repaint()
 
     # ------------------------------------------------------------------ crosshair
     def _mouse_moved(self, position) -> None:
@@ -662,6 +709,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         if inside is None or self._damping is None:
             for line in self.crosshair_lines:
                 line.setVisible(False)
+            self._repaint()
             self.readout_changed.emit(None)
             return
         x_log = inside.getViewBox().mapSceneToView(position).x()
@@ -675,6 +723,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         for line in self.crosshair_lines:
             line.setValue(x_log)
             line.setVisible(value is not None)
+        self._repaint()
         self.readout_changed.emit(value)
         return value
 

@@ -49,11 +49,14 @@ def window_steps(steps: int, slider_name: str = "damping_slider") -> dict:
     from app.main_window import MainWindow
 
     class PaintCounter(QtCore.QObject):
+        """Counts the viewport's paints and notes the window's redraw count at the last one."""
         count = 0
+        after_redraw = -1
 
         def eventFilter(self, watched, event):
             if event.type() == QtCore.QEvent.Type.Paint:
                 PaintCounter.count += 1
+                PaintCounter.after_redraw = window.redraw_count
             return False
 
     def static_repaint_ms(viewport, count=40):
@@ -80,14 +83,14 @@ def window_steps(steps: int, slider_name: str = "damping_slider") -> dict:
         start = time.perf_counter()
         before_redraws = window.redraw_count
         slider.setValue(position)
-        while window.redraw_count == before_redraws:   # the coalesced (zero-delay timer) redraw
+        while window.redraw_count == before_redraws:   # the coalesced (posted event) redraw
             app.processEvents()
-        painted = PaintCounter.count
-        app.processEvents()                            # the paint Qt scheduled after setData, if due
-        if PaintCounter.count == painted:
+        if PaintCounter.after_redraw != window.redraw_count:
+            app.processEvents()                        # the paint Qt scheduled after the redraw, if due
+        if PaintCounter.after_redraw != window.redraw_count:
             viewport.repaint()                         # else force it: synchronous paint of both plots
             forced += 1
-        assert PaintCounter.count > painted
+        assert PaintCounter.after_redraw == window.redraw_count
         samples.append(time.perf_counter() - start)
     samples = samples[20:]                             # warm-up
     static_ms = static_repaint_ms(viewport)

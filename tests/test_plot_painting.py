@@ -1,0 +1,130 @@
+"""The window's plots as painted: curve, markers, legend and crosshair pixels (offscreen).
+
+The interactive plots paint their live items themselves over a cached layer of the static
+ones, so these tests look at the pixels of the grabbed viewport, at positions computed here
+from the closed form of |T| (REFERENCES.md §1: Vigran eq. 2.33), not from the curve data.
+"""
+from __future__ import annotations
+
+import math
+
+import pytest
+from PySide6 import QtCore, QtGui
+
+from app.style import PALETTE
+from tests.conftest import ROOT
+from tests.test_window import settle
+
+pytestmark = pytest.mark.gui
+
+DEMO = ROOT / "demo_projects" / "rooftop_air_handler.json"
+
+
+def _viscous_magnitude(r: float, zeta: float) -> float:
+    """|T| = sqrt((1 + (2ζr)²) / ((1 − r²)² + (2ζr)²)), Vigran eq. 2.33."""
+    a = 2.0 * zeta * r
+    return math.sqrt((1.0 + a * a) / ((1.0 - r * r) ** 2 + a * a))
+
+
+def _pixel_of(plots, plot, x_log: float, y: float) -> QtCore.QPoint:
+    """Viewport pixel of a point in a plot's view coordinates (log10 x)."""
+    scene = plot.getViewBox().mapViewToScene(QtCore.QPointF(x_log, y))
+    return plots.mapFromScene(scene)
+
+
+def _distance(image: QtGui.QImage, at: QtCore.QPoint, colour: str, reach: int = 1) -> int:
+    """Smallest largest-channel difference to ``colour`` within ``reach`` pixels of ``at``."""
+    target = QtGui.QColor(colour)
+    best = 255
+    for dx in range(-reach, reach + 1):
+        for dy in range(-reach, reach + 1):
+            pixel = image.pixelColor(at.x() + dx, at.y() + dy)
+            best = min(best, max(abs(pixel.red() - target.red()), abs(pixel.green() - target.green()),
+                                 abs(pixel.blue() - target.blue())))
+    return best
+
+
+def _grab(plots) -> QtGui.QImage:
+    return plots.viewport().grab().toImage()
+
+
+class _Paints(QtCore.QObject):
+    def __init__(self):
+        super().__init__()
+        self.count = 0
+
+    def eventFilter(self, _watched, event):  # noqa: N802
+        if event.type() == QtCore.QEvent.Type.Paint:
+            self.count += 1
+        return False
+
+
+def test_the_design_curve_and_marker_are_painted_where_the_closed_form_puts_them(main_window, qtbot):
+    window = main_window(DEMO)
+    window.operating.damping_spin.setValue(0.1)
+    settle(qtbot, window)
+    plots = window.plots
+    image = _grab(plots)
+    for r in (0.5, 2.0, 3.0, 6.0):   # |T| 1.319, 0.3998, 0.1809, 0.0587 at ζ = 0.1 (Vigran table)
+        at = _pixel_of(plots, plots.magnitude_plot, math.log10(r), math.log10(_viscous_magnitude(r, 0.1)))
+        assert _distance(image, at, PALETTE["design"]) < 40, r
+    ratio = window.model.result.frequency_ratio
+    at = _pixel_of(plots, plots.magnitude_plot, math.log10(ratio), math.log10(_viscous_magnitude(ratio, 0.1)))
+    assert _distance(image, at, PALETTE["operating"], reach=0) < 40   # the marker's centre
+
+
+def test_a_slider_step_repaints_the_plots_by_itself(main_window, qtbot):
+    window = main_window(DEMO)
+    qtbot.waitUntil(lambda: window.plots.layer_renders > 0, timeout=2000)   # the first paint
+    paints = _Paints()
+    window.plots.viewport().installEventFilter(paints)
+    renders = window.plots.layer_renders
+    for step in range(1, 6):
+        before = paints.count
+        window.operating.damping_slider.setValue(window.operating.damping_slider.value() + 1)
+        qtbot.waitUntil(lambda: paints.count > before, timeout=2000)   # no forced repaint
+    assert window.plots.layer_renders == renders      # the static layer is kept during a drag
+    image = _grab(window.plots)
+    zeta = window.model.design.damping.value
+    at = _pixel_of(window.plots, window.plots.magnitude_plot, math.log10(3.0),
+                   math.log10(_viscous_magnitude(3.0, zeta)))
+    assert _distance(image, at, PALETTE["design"]) < 40   # the curve of the last step
+    window.view_actions[("magnitude_scale", "db")].trigger()
+    settle(qtbot, window)
+    qtbot.waitUntil(lambda: window.plots.layer_renders > renders, timeout=2000)   # new axes: a new layer
+
+
+def test_the_legend_is_painted_over_the_plot(main_window, qtbot):
+    window = main_window(DEMO)
+    plots = window.plots
+    image = _grab(plots)
+    legend = plots.mapFromScene(plots.legend.sceneBoundingRect()).boundingRect()
+    assert legend.width() > 40 and legend.height() > 40
+    inside = [image.pixelColor(x, y) for x in range(legend.left() + 2, legend.right() - 1)
+              for y in range(legend.top() + 2, legend.bottom() - 1)]
+
+    def near(colour, name):
+        target = QtGui.QColor(PALETTE[name])
+        return max(abs(colour.red() - target.red()), abs(colour.green() - target.green()),
+                   abs(colour.blue() - target.blue())) < 40
+
+    assert any(near(c, "design") for c in inside)       # the design sample line
+    assert any(near(c, "operating") for c in inside)    # the operating-point symbol
+    # the target sample, a thin dash-dot line: purple, if not at full strength
+    assert any(c.red() - c.green() > 40 and c.blue() - c.green() > 60 for c in inside)
+    # Its box is near white even over the tinted isolation region it sits in.
+    corner = image.pixelColor(legend.right() - 4, legend.bottom() - 4)
+    assert min(corner.red(), corner.green(), corner.blue()) > 235
+
+
+def test_the_crosshair_is_painted_and_taken_away(main_window, qtbot):
+    window = main_window(DEMO)
+    plots = window.plots
+    x_log = math.log10(0.3)
+    top, bottom = plots.magnitude_plot.getViewBox().viewRange()[1]
+    at = _pixel_of(plots, plots.magnitude_plot, x_log, bottom + 0.15 * (top - bottom))   # far below the curve
+    assert _distance(_grab(plots), at, PALETTE["crosshair"]) > 60
+    assert plots.show_crosshair_at(x_log) is not None
+    assert _distance(_grab(plots), at, PALETTE["crosshair"]) < 60
+    plots._mouse_moved(QtCore.QPointF(-50.0, -50.0))     # the mouse leaves the plots
+    assert _distance(_grab(plots), at, PALETTE["crosshair"]) > 60

@@ -39,6 +39,8 @@ from core.transmissibility import CROSSOVER_RATIO, transmissibility_db  # noqa: 
 pg.setConfigOptions(background=PALETTE["background"], foreground=PALETTE["foreground"],
                     antialias=True, useOpenGL=False)
 
+_INTERSECT_CLIP = QtCore.Qt.ClipOperation.IntersectClip
+
 #: Most reference curves drawn (ViewSettings allows up to 20).
 MAX_REFERENCE_CURVES = 20
 #: Fixed axis ranges.
@@ -298,6 +300,7 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self.phase_plot.setYRange(*PHASE_RANGE, padding=0)
 
         self._layered = interactive
+        self._views = (self.magnitude_plot.getViewBox(), self.phase_plot.getViewBox())
         self._static_key = None
         self._layers = None            # a _Layers once rendered
         self.layer_renders = 0
@@ -330,16 +333,19 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         return items
 
     def _layer_key(self):
-        # Ranges count as changed from 1e-4 of their span (under 0.1 px here).
-        def steps(low, high):
-            resolution = max(abs(high - low), 1e-300) * 1e-4
-            return round(low / resolution), round(high / resolution)
+        """What the layers show: static key, viewport, each view box's mapping, the legend.
 
-        views = tuple((tuple(plot.getViewBox().sceneBoundingRect().getRect()),
-                       tuple(steps(*span) for span in plot.getViewBox().viewRange()))
-                      for plot in (self.magnitude_plot, self.phase_plot))
+        A view box's mapping is its child group's scene transform (its range and place) and its
+        size, read from Qt: pyqtgraph's own bounds and ranges are computed in Python.
+        """
+        def placed(item, size: QtCore.QSizeF):
+            t = item.sceneTransform()
+            return (round(t.m11(), 9), round(t.m22(), 9), round(t.dx(), 6), round(t.dy(), 6),
+                    round(size.width(), 6), round(size.height(), 6))
+
+        views = tuple(placed(view.childGroup, view.geometry().size()) for view in self._views)
         legend = (tuple(label.text for _sample, label in self.legend.items),
-                  tuple(self.legend.sceneBoundingRect().getRect()))
+                  placed(self.legend, self.legend.geometry().size()))   # (LegendItem.size is not Qt's)
         live = getattr(self, "comparison_magnitude", None) is not None   # the live items' paint list
         viewport = self.viewport()
         return (self._static_key, viewport.width(), viewport.height(), viewport.devicePixelRatioF(), views,
@@ -387,14 +393,14 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         for item in part_of:
             item.setFlag(no_contents, own[item])
         paint_list = []
-        for plot in (self.magnitude_plot, self.phase_plot):
-            view = plot.getViewBox()
+        for view in self._views:
             clip = self.mapFromScene(view.sceneBoundingRect()).boundingRect()
             ordered = sorted((item for item in live if view.isAncestorOf(item)), key=lambda item: item.zValue())
             drawn = []
             for item in ordered:        # an item, then its children in stacking order
                 drawn += [item] + sorted(item.childItems(), key=lambda child: child.zValue())
-            paint_list.append((clip, [item for item in drawn if not own[item]]))
+            # pyqtgraph items compute what they draw in boundingRect and may change the painter
+            paint_list.append((clip, [(item, isinstance(item, pg.GraphicsItem)) for item in drawn if not own[item]]))
         self._layers = _Layers(key, background, legend_rect.topLeft(), legend, paint_list)
         self.layer_renders += 1
 
@@ -404,8 +410,8 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         # Only the view boxes need preparing for the live items (their transforms); pyqtgraph's
         # scene-wide prepareForPaint also makes every static text item recompute its transform,
         # which the layer render (scene.render) does anyway.
-        for plot in (self.magnitude_plot, self.phase_plot):
-            plot.getViewBox().prepareForPaint()
+        for view in self._views:
+            view.prepareForPaint()
         key = self._layer_key()
         if self._layers is None or self._layers.key != key:
             self._render_layers(key)
@@ -422,19 +428,23 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         layers = self._layers
         viewport = self.viewport()
         view_transform = self.viewportTransform()
+        option = self._paint_option
         painter = QtGui.QPainter(viewport)
         painter.setClipRegion(region)
         painter.drawPixmap(0, 0, layers.background)
         painter.setRenderHints(self.renderHints())
         for clip, items in layers.paint_list:
             painter.save()
-            painter.setClipRect(clip, QtCore.Qt.ClipOperation.IntersectClip)
-            for item in items:
-                if item.isVisible():
-                    item.boundingRect()     # pyqtgraph items compute what they draw there
+            painter.setClipRect(clip, _INTERSECT_CLIP)
+            for item, foreign in items:
+                if not item.isVisible():
+                    continue
+                if foreign:
+                    item.boundingRect()
                     painter.save()
-                    painter.setTransform(item.deviceTransform(view_transform))
-                    item.paint(painter, self._paint_option, viewport)
+                painter.setTransform(item.deviceTransform(view_transform))
+                item.paint(painter, option, viewport)
+                if foreign:
                     painter.restore()
             painter.restore()
         painter.drawPixmap(layers.legend_at, layers.legend)

@@ -117,6 +117,7 @@ class DesignPanel(QtWidgets.QWidget):
         self.fields: dict[str, NumberBinding] = {}
         self._shown: dict[str, object] = {}
         self._editing: str | None = None
+        self._visibility_shown = None   # (shown rows, excitation kind) last applied
         outer = QtWidgets.QVBoxLayout(self)
         outer.setContentsMargins(6, 6, 6, 6)
 
@@ -439,6 +440,10 @@ class DesignPanel(QtWidgets.QWidget):
             "loads": layout == "per_mount",
             "force": kind == "force", "unbalance": kind == "unbalance", "rotor_mass": kind == "balance_grade",
         }
+        state = (tuple(shown.values()), kind)
+        if state == self._visibility_shown:   # every design event refreshes the panel
+            return
+        self._visibility_shown = state
         for key, visible in shown.items():
             row = self.fields[key].row
             if key == "speed_max":

@@ -177,9 +177,11 @@ def design_frequency_ratio(design: DesignInputs) -> float:
     return required_ratio(target, design.damping, field="tuning.isolation_percent")
 
 
-def _worst_over_range(design: DesignInputs, omega_n: float, r_low: float, r_high: float):
-    """Largest |T| over the speed range and duty speeds, and the speed (r/min) where it occurs."""
-    peak = transmissibility_peak(design.damping)
+def _worst_over_range(design: DesignInputs, omega_n: float, r_low: float, r_high: float, peak):
+    """Largest |T| over the speed range and duty speeds, and the speed (r/min) where it occurs.
+
+    ``peak`` is the design damping's :func:`core.transmissibility.transmissibility_peak`.
+    """
     candidates = [r_low, r_high] + [float(rpm_to_rad_s(s)) / omega_n for s in design.duty_speeds_rpm]
     if r_low < peak.ratio < r_high:
         candidates.append(peak.ratio)
@@ -235,7 +237,7 @@ def synthesize(design: DesignInputs) -> DesignResult:
         response = complex(force_transmissibility(ratio, design.damping))
         magnitude = abs(response)
         peak = transmissibility_peak(design.damping)
-        worst, worst_speed = _worst_over_range(design, omega_n, ratio, ratio_high)
+        worst, worst_speed = _worst_over_range(design, omega_n, ratio, ratio_high, peak)
     field = "damping.damping_ratio" if design.damping.model == "viscous" else "damping.loss_factor"
     if not (np.isfinite(worst) and np.isfinite(magnitude)):
         raise InputError(field, "must be > 0 when a running speed is at resonance (frequency ratio 1): "

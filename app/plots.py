@@ -26,12 +26,13 @@ os.environ.setdefault("PYQTGRAPH_QT_LIB", "PySide6")
 from PySide6 import QtCore, QtGui, QtWidgets  # noqa: E402  (PySide6 before pyqtgraph)
 import numpy as np  # noqa: E402
 import pyqtgraph as pg  # noqa: E402
+from pyqtgraph.graphicsItems.ScatterPlotItem import Symbols as SYMBOLS  # noqa: E402
 
 from app.style import FONT_POINTS, LINE_WIDTH, MARKER_SIZE, PALETTE, style_axes  # noqa: E402
 from core.curves import (  # noqa: E402
     X_AXIS_LABELS, drawn_curve_family, frequency_axis, magnitude_on_scale, operating_points,
     ratio_axis, ratio_from_axis, readout)
-from core.design import DesignInputs  # noqa: E402
+from core.design import MAX_DUTY_SPEEDS, DesignInputs  # noqa: E402
 from core.design_model import Evaluation  # noqa: E402
 from core.project import ViewSettings  # noqa: E402
 from core.transmissibility import CROSSOVER_RATIO, transmissibility_db  # noqa: E402
@@ -104,7 +105,9 @@ class DrawnCurve(QtWidgets.QGraphicsPathItem):
 
 
 class PointMarkers:
-    """Up to ``count`` round symbols on one plot, plain Qt ellipse items of a fixed pixel size.
+    """Up to ``count`` symbols on one plot, plain Qt items of a fixed pixel size.
+
+    Round (``symbol="o"``, ellipse items) or another pyqtgraph symbol by name (path items).
 
     Each sits at its point (log10 where the axis is) and ignores the view's scaling, so Qt
     moves and paints it alone: a pyqtgraph scatter item re-renders its symbols for new data
@@ -117,10 +120,14 @@ class PointMarkers:
         Not drawn: the legend's picture of the symbol.
     """
 
-    def __init__(self, plot: pg.PlotItem, count: int, z: float, size: float, brush, pen: QtGui.QPen):
+    def __init__(self, plot: pg.PlotItem, count: int, z: float, size: float, brush, pen: QtGui.QPen,
+                 symbol: str = "o"):
         self.items = []
         for _ in range(count):
-            item = QtWidgets.QGraphicsEllipseItem(-size / 2.0, -size / 2.0, size, size)
+            if symbol == "o":
+                item = QtWidgets.QGraphicsEllipseItem(-size / 2.0, -size / 2.0, size, size)
+            else:   # pyqtgraph's symbol of that name (a unit path), at this size
+                item = QtWidgets.QGraphicsPathItem(QtGui.QTransform.fromScale(size, size).map(SYMBOLS[symbol]))
             item.setBrush(pg.mkBrush(brush))
             item.setPen(pen)
             item.setFlag(QtWidgets.QGraphicsItem.GraphicsItemFlag.ItemIgnoresTransformations)
@@ -128,7 +135,7 @@ class PointMarkers:
             item.setVisible(False)
             plot.addItem(item, ignoreBounds=True)
             self.items.append(item)
-        self.sample = pg.PlotDataItem([0.0], [0.0], pen=None, symbol="o", symbolSize=size, symbolBrush=brush,
+        self.sample = pg.PlotDataItem([0.0], [0.0], pen=None, symbol=symbol, symbolSize=size, symbolBrush=brush,
                                       symbolPen=pen)   # with a point: the legend reads its symbol's style
         self._points = (np.empty(0), np.empty(0))
 
@@ -266,12 +273,10 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         # One marker at the lowest operating speed, a second at the highest of a range.
         self.operating_magnitude = PointMarkers(self.magnitude_plot, 2, 20, **marker)
         self.operating_phase = PointMarkers(self.phase_plot, 2, 20, **marker)
-        duty = dict(pen=None, symbol="d", symbolSize=MARKER_SIZE * self.scale, symbolBrush=PALETTE["background"],
-                    symbolPen=pg.mkPen(PALETTE["operating"], width=2.0 * self.scale))
-        self.duty_magnitude = self.magnitude_plot.plot(**duty)
-        self.duty_phase = self.phase_plot.plot(**duty)
-        self.duty_magnitude.setZValue(19)
-        self.duty_phase.setZValue(19)
+        duty = dict(size=MARKER_SIZE * self.scale, brush=PALETTE["background"],
+                    pen=pg.mkPen(PALETTE["operating"], width=2.0 * self.scale), symbol="d")
+        self.duty_magnitude = PointMarkers(self.magnitude_plot, MAX_DUTY_SPEEDS, 19, **duty)
+        self.duty_phase = PointMarkers(self.phase_plot, MAX_DUTY_SPEEDS, 19, **duty)
 
         self.legend = pg.LegendItem(offset=(-8 * self.scale, 8 * self.scale),
                                     labelTextSize=f"{round(FONT_POINTS * 0.95 * self.scale)}pt",
@@ -327,7 +332,8 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
     def _live_items(self) -> list:
         """Items that change during a slider drag; painted at every frame over the static layer."""
         items = [self.design_magnitude, self.design_phase, *self.operating_magnitude.items,
-                 *self.operating_phase.items, self.duty_magnitude, self.duty_phase, *self.crosshair_lines]
+                 *self.operating_phase.items, *self.duty_magnitude.items, *self.duty_phase.items,
+                 *self.crosshair_lines]
         if getattr(self, "comparison_magnitude", None) is not None:
             items += [self.comparison_magnitude, self.comparison_phase]
         return items
@@ -565,15 +571,13 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
                     band.setVisible(True)
             duty = result.duty_points
             dx = x_of(np.array([point.frequency_ratio for point in duty], dtype=float))
-            self._set_data(self.duty_magnitude, dx,
-                           y_of(np.array([point.transmissibility for point in duty], dtype=float)))
-            self._set_data(self.duty_phase, dx, np.array([point.phase_deg for point in duty], dtype=float))
+            self.duty_magnitude.set_points(dx, y_of(np.array([point.transmissibility for point in duty], dtype=float)),
+                                           log_y)
+            self.duty_phase.set_points(dx, np.array([point.phase_deg for point in duty], dtype=float), False)
             self._show_duty_in_legend(bool(duty))
         else:
-            for markers in (self.operating_magnitude, self.operating_phase):
+            for markers in (self.operating_magnitude, self.operating_phase, self.duty_magnitude, self.duty_phase):
                 markers.set_points((), (), False)
-            for item in (self.duty_magnitude, self.duty_phase):
-                self._set_data(item, np.empty(0), np.empty(0))
             for band in self.speed_bands:
                 band.setVisible(False)
             self._show_duty_in_legend(False)
@@ -588,23 +592,13 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         self._static_changed((reference_key, self._x_range, design.isolation_percent, bands))
         self._repaint()
 
-    @staticmethod
-    def _set_data(item: pg.PlotDataItem, x: np.ndarray, y: np.ndarray) -> None:
-        """``setData`` unless the item already shows these points (duty markers rarely move)."""
-        shown_x, shown_y = item.getOriginalDataset()
-        if shown_x is None or shown_y is None:   # an item with no points yet, or emptied
-            shown_x = shown_y = np.empty(0)
-        if np.array_equal(shown_x, x) and np.array_equal(shown_y, y):
-            return
-        item.setData(x, y)
-
     def _show_duty_in_legend(self, shown: bool) -> None:
         if shown != self._duty_in_legend:
             self._duty_in_legend = shown
             if shown:
-                self.legend.addItem(self.duty_magnitude, "duty speeds")
+                self.legend.addItem(self.duty_magnitude.sample, "duty speeds")
             else:
-                self.legend.removeItem(self.duty_magnitude)
+                self.legend.removeItem(self.duty_magnitude.sample)
             self.legend.layout.activate()   # rows in place now, for the legend layer
 
     def _set_text(self, item: pg.TextItem, text: str, x: float, y: float) -> None:

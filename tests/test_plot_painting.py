@@ -11,7 +11,7 @@ import math
 import pytest
 from PySide6 import QtCore, QtGui
 
-from app.style import PALETTE
+from app.style import MARKER_SIZE, PALETTE
 from tests.conftest import ROOT
 from tests.test_window import settle
 
@@ -128,3 +128,20 @@ def test_the_crosshair_is_painted_and_taken_away(main_window, qtbot):
     assert _distance(_grab(plots), at, PALETTE["crosshair"]) < 60
     plots._mouse_moved(QtCore.QPointF(-50.0, -50.0))     # the mouse leaves the plots
     assert _distance(_grab(plots), at, PALETTE["crosshair"]) > 60
+
+
+def test_duty_speed_diamonds_are_painted_at_their_ratio(main_window, qtbot):
+    from tests.test_window import paste_into
+    window = main_window(DEMO)
+    window.operating.damping_spin.setValue(0.1)
+    paste_into(qtbot, window.design_panel.fields["duty_speeds"].row.editor, "1500")
+    settle(qtbot, window)
+    plots = window.plots
+    ratio = window.model.result.duty_points[0].frequency_ratio
+    assert 1.0 < ratio < 10.0                         # inside the plot
+    # The diamond is hollow: its outline, 0.4 marker sizes to the left of the point, is orange.
+    at = _pixel_of(plots, plots.magnitude_plot, math.log10(ratio), math.log10(_viscous_magnitude(ratio, 0.1)))
+    image = _grab(plots)
+    left = QtCore.QPoint(at.x() - round(0.4 * MARKER_SIZE), at.y())
+    assert _distance(image, left, PALETTE["operating"], reach=1) < 60
+    assert sum(item.isVisible() for item in plots.duty_magnitude.items) == 1

@@ -511,7 +511,7 @@ def test_duty_speeds_are_entered_marked_and_reported(main_window, qtbot):
     paste_into(qtbot, panel.fields["duty_speeds"].row.editor, "3700; 7400")
     settle(qtbot, window)
     assert window.model.design.duty_speeds_rpm == (3700.0, 7400.0)
-    x, y = curve_xy(window.plots.duty_magnitude)
+    x, y = window.plots.duty_magnitude.points()
     np.testing.assert_allclose(x, [5.0, 10.0])  # r = n / 740 r/min
     # abs T at r = 5 with ζ = 0.1: 0.05887 (REFERENCES.md §1 table, Vigran eq. 2.33)
     assert f"{y[0]:.4g}" == "0.05887"

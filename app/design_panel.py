@@ -17,7 +17,7 @@ from typing import Callable
 
 from PySide6 import QtCore, QtWidgets
 
-from app.style import FIELD_ERROR_STYLE
+from app.style import FIELD_ERROR_STYLE, unshaped_font
 from core.curves import DAMPING_GRID, RATIO_GRID
 from core.design import LIMITS, DesignInputs
 from core.design_model import DesignModel
@@ -489,6 +489,7 @@ class OperatingPointControls(QtWidgets.QGroupBox):
         for spin in (self.damping_spin, self.ratio_spin):
             spin.setKeyboardTracking(False)
             spin.setMinimumWidth(84)
+            spin.setFont(unshaped_font())   # a new number at every slider step
         for widget in (self.damping_slider, self.ratio_slider, self.damping_spin, self.ratio_spin):
             # Filled with the window colour, they count as opaque: a new value repaints them
             # alone, not the group box, dock and window beneath.

@@ -15,7 +15,7 @@ from __future__ import annotations
 from PySide6 import QtCore, QtGui, QtWidgets
 
 from app.design_panel import message_label
-from app.style import caution_label
+from app.style import caution_label, unshaped_font
 from core.design import DesignInputs
 from core.design_model import Evaluation
 from core.units import format_value, format_values
@@ -85,6 +85,7 @@ class ValueText(QtWidgets.QWidget):
         # It paints its whole rectangle (background too), so Qt need not repaint the panel
         # beneath it for a new value.
         self.setAttribute(QtCore.Qt.WidgetAttribute.WA_OpaquePaintEvent)
+        self.setFont(unshaped_font())
 
     def text(self) -> str:
         return self._text

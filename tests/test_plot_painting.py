@@ -13,6 +13,7 @@ from PySide6 import QtCore, QtGui
 
 from app.style import MARKER_SIZE, PALETTE
 from tests.conftest import ROOT
+from tests.qt_events import EventCounter
 from tests.test_window import settle
 
 pytestmark = pytest.mark.gui
@@ -48,17 +49,6 @@ def _grab(plots) -> QtGui.QImage:
     return plots.viewport().grab().toImage()
 
 
-class _Paints(QtCore.QObject):
-    def __init__(self):
-        super().__init__()
-        self.count = 0
-
-    def eventFilter(self, _watched, event):  # noqa: N802
-        if event.type() == QtCore.QEvent.Type.Paint:
-            self.count += 1
-        return False
-
-
 def test_the_design_curve_and_marker_are_painted_where_the_closed_form_puts_them(main_window, qtbot):
     window = main_window(DEMO)
     window.operating.damping_spin.setValue(0.1)
@@ -76,7 +66,7 @@ def test_the_design_curve_and_marker_are_painted_where_the_closed_form_puts_them
 def test_a_slider_step_repaints_the_plots_by_itself(main_window, qtbot):
     window = main_window(DEMO)
     qtbot.waitUntil(lambda: window.plots.layer_renders > 0, timeout=2000)   # the first paint
-    paints = _Paints()
+    paints = EventCounter(QtCore.QEvent.Type.Paint)
     window.plots.viewport().installEventFilter(paints)
     renders = window.plots.layer_renders
     for step in range(1, 6):

@@ -6,6 +6,7 @@ from PySide6 import QtCore, QtWidgets
 
 from app.results_panel import ResultsPanel, ValueText
 from tests.conftest import ROOT
+from tests.qt_events import EventCounter
 
 pytestmark = pytest.mark.gui
 
@@ -63,23 +64,10 @@ def test_copy_results_gives_each_shown_row_as_text(main_window):
     assert QtWidgets.QApplication.clipboard().text() == text
 
 
-class _LayoutRequests(QtCore.QObject):
-    """Counts the layout requests a widget receives."""
-
-    def __init__(self):
-        super().__init__()
-        self.count = 0
-
-    def eventFilter(self, _watched, event):  # noqa: N802
-        if event.type() == QtCore.QEvent.Type.LayoutRequest:
-            self.count += 1
-        return False
-
-
 def test_a_new_text_of_the_same_height_asks_for_no_layout(qtbot):
     holder, value = _shown_value(qtbot, "93.4 N", 300)
     QtWidgets.QApplication.processEvents()       # the layout of the first show
-    requests = _LayoutRequests()
+    requests = EventCounter(QtCore.QEvent.Type.LayoutRequest)
     holder.installEventFilter(requests)
     for number in range(20):                     # a drag: new numbers, one line each
         value.setText(f"{93.4 + number / 10:.4g} N")
@@ -94,7 +82,7 @@ def test_warnings_shrink_at_once_and_change_without_a_layout(main_window):
     panel: ResultsPanel = main_window(ROOT / "demo_projects" / "rooftop_air_handler.json").results
     warnings = panel.warnings_label
     line = warnings.fontMetrics().height()
-    requests = _LayoutRequests()
+    requests = EventCounter(QtCore.QEvent.Type.LayoutRequest)
     panel.installEventFilter(requests)
     panel._design_warnings = ("Per-mount loads differ by 27.3 % of the mean.",)
     panel._show_warnings()

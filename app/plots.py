@@ -387,17 +387,21 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
             pixmap.setDevicePixelRatio(ratio)
             pixmap.fill(fill)
             painter = QtGui.QPainter(pixmap)
-            painter.setRenderHints(self.renderHints())
-            source = self.viewportTransform().inverted()[0].mapRect(QtCore.QRectF(rect))
-            scene.render(painter, QtCore.QRectF(0.0, 0.0, rect.width(), rect.height()), source,
-                         QtCore.Qt.AspectRatioMode.IgnoreAspectRatio)
-            painter.end()
+            try:
+                painter.setRenderHints(self.renderHints())
+                source = self.viewportTransform().inverted()[0].mapRect(QtCore.QRectF(rect))
+                scene.render(painter, QtCore.QRectF(0.0, 0.0, rect.width(), rect.height()), source,
+                             QtCore.Qt.AspectRatioMode.IgnoreAspectRatio)
+            finally:
+                painter.end()
             return pixmap
 
-        background = render("static", viewport_rect, self.backgroundBrush().color())
-        legend = render("legend", legend_rect, QtGui.QColor(0, 0, 0, 0))
-        for item in part_of:
-            item.setFlag(no_contents, own[item])
+        try:
+            background = render("static", viewport_rect, self.backgroundBrush().color())
+            legend = render("legend", legend_rect, QtGui.QColor(0, 0, 0, 0))
+        finally:
+            for item in part_of:
+                item.setFlag(no_contents, own[item])
         paint_list = []
         for view in self._views:
             clip = self.mapFromScene(view.sceneBoundingRect()).boundingRect()
@@ -436,25 +440,27 @@ class TransmissibilityPlots(pg.GraphicsLayoutWidget):
         view_transform = self.viewportTransform()
         option = self._paint_option
         painter = QtGui.QPainter(viewport)
-        painter.setClipRegion(region)
-        painter.drawPixmap(0, 0, layers.background)
-        painter.setRenderHints(self.renderHints())
-        for clip, items in layers.paint_list:
-            painter.save()
-            painter.setClipRect(clip, _INTERSECT_CLIP)
-            for item, foreign in items:
-                if not item.isVisible():
-                    continue
-                if foreign:
-                    item.boundingRect()
-                    painter.save()
-                painter.setTransform(item.deviceTransform(view_transform))
-                item.paint(painter, option, viewport)
-                if foreign:
-                    painter.restore()
-            painter.restore()
-        painter.drawPixmap(layers.legend_at, layers.legend)
-        painter.end()
+        try:   # a painter left active on the viewport after an error would crash Qt
+            painter.setClipRegion(region)
+            painter.drawPixmap(0, 0, layers.background)
+            painter.setRenderHints(self.renderHints())
+            for clip, items in layers.paint_list:
+                painter.save()
+                painter.setClipRect(clip, _INTERSECT_CLIP)
+                for item, foreign in items:
+                    if not item.isVisible():
+                        continue
+                    if foreign:
+                        item.boundingRect()
+                        painter.save()
+                    painter.setTransform(item.deviceTransform(view_transform))
+                    item.paint(painter, option, viewport)
+                    if foreign:
+                        painter.restore()
+                painter.restore()
+            painter.drawPixmap(layers.legend_at, layers.legend)
+        finally:
+            painter.end()
 
     def _repaint(self) -> None:
         """Interactive plots: paint the viewport at the next event loop pass (live items changed)."""

@@ -135,3 +135,27 @@ def test_duty_speed_diamonds_are_painted_at_their_ratio(main_window, qtbot):
     left = QtCore.QPoint(at.x() - round(0.4 * MARKER_SIZE), at.y())
     assert _distance(image, left, PALETTE["operating"], reach=1) < 60
     assert sum(item.isVisible() for item in plots.duty_magnitude.items) == 1
+
+
+def test_an_error_in_a_live_item_paint_is_reported_not_a_crash(main_window, qtbot):
+    window = main_window(DEMO)
+    plots = window.plots
+    _grab(plots)                                       # layers and paint list made
+
+    def broken(*_args):
+        raise RuntimeError("paint failed on purpose")
+
+    plots.design_magnitude.paint = broken
+    paints = EventCounter(QtCore.QEvent.Type.Paint)
+    plots.viewport().installEventFilter(paints)
+    with qtbot.capture_exceptions() as caught:
+        plots.viewport().update()                      # painted by the event loop, as in use
+        qtbot.waitUntil(lambda: paints.count > 0, timeout=2000)
+        with pytest.raises(RuntimeError, match="paint failed on purpose"):
+            _grab(plots)                               # a painter left open here crashed Qt
+    assert any("paint failed on purpose" in str(error[1]) for error in caught)
+    del plots.design_magnitude.paint
+    image = _grab(plots)
+    at = _pixel_of(plots, plots.magnitude_plot, math.log10(3.0),
+                   math.log10(_viscous_magnitude(3.0, window.model.design.damping.value)))
+    assert _distance(image, at, PALETTE["design"]) < 40   # painted again once the item is fixed

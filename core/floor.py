@@ -449,11 +449,7 @@ def isolator_damping(damping_ratio: float | None = None,
 
 def _natural_frequency(value: float, field: str = "natural_frequency_hz") -> float:
     low, high = NATURAL_FREQUENCY_RANGE_HZ
-    reason = f"must be a number from {low:g} to {high:g} Hz"
-    number = finite_number(field, value, reason)
-    if not low <= number <= high:
-        raise InputError(field, reason, value)
-    return number
+    return finite_number(field, value, f"must be a number from {low:g} to {high:g} Hz", low, high)
 
 
 def _band_factors(band_hz, natural_frequency_hz: float, damping: Damping,

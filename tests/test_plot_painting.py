@@ -33,16 +33,17 @@ def _pixel_of(plots, plot, x_log: float, y: float) -> QtCore.QPoint:
     return plots.mapFromScene(scene)
 
 
+def _difference(pixel: QtGui.QColor, colour: str) -> int:
+    """Largest channel difference (0..255) between ``pixel`` and ``colour``."""
+    target = QtGui.QColor(colour)
+    return max(abs(pixel.red() - target.red()), abs(pixel.green() - target.green()),
+               abs(pixel.blue() - target.blue()))
+
+
 def _distance(image: QtGui.QImage, at: QtCore.QPoint, colour: str, reach: int = 1) -> int:
     """Smallest largest-channel difference to ``colour`` within ``reach`` pixels of ``at``."""
-    target = QtGui.QColor(colour)
-    best = 255
-    for dx in range(-reach, reach + 1):
-        for dy in range(-reach, reach + 1):
-            pixel = image.pixelColor(at.x() + dx, at.y() + dy)
-            best = min(best, max(abs(pixel.red() - target.red()), abs(pixel.green() - target.green()),
-                                 abs(pixel.blue() - target.blue())))
-    return best
+    return min(_difference(image.pixelColor(at.x() + dx, at.y() + dy), colour)
+               for dx in range(-reach, reach + 1) for dy in range(-reach, reach + 1))
 
 
 def _grab(plots) -> QtGui.QImage:
@@ -94,9 +95,7 @@ def test_the_legend_is_painted_over_the_plot(main_window, qtbot):
               for y in range(legend.top() + 2, legend.bottom() - 1)]
 
     def near(colour, name):
-        target = QtGui.QColor(PALETTE[name])
-        return max(abs(colour.red() - target.red()), abs(colour.green() - target.green()),
-                   abs(colour.blue() - target.blue())) < 40
+        return _difference(colour, PALETTE[name]) < 40
 
     assert any(near(c, "design") for c in inside)       # the design sample line
     assert any(near(c, "operating") for c in inside)    # the operating-point symbol
